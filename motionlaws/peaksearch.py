@@ -51,8 +51,8 @@ def refined_max_abs(f, breakpoints=(), lo: float = 0.0, hi: float = 1.0) -> tupl
         for _ in range(ZOOM_ROUNDS):
             xs = np.linspace(a, b, ZOOM_POINTS)
             ys = np.abs(f(xs))
-            k = first_max(ys)
-            if ys[k] > best_y * (1 + TIE):
+            k = int(np.argmax(ys))
+            if ys[k] > best_y:  # any gain counts here: same maximum, finer
                 best_x, best_y = float(xs[k]), float(ys[k])
             h = xs[1] - xs[0]
             a, b = max(a, xs[k] - h), min(b, xs[k] + h)
