@@ -156,6 +156,7 @@ class PiecewiseSineLaw(MotionLaw):
         self._q = np.array([pc.q for pc in pieces])
         self._w = np.array([pc.w for pc in pieces])
         self._phi = np.array([pc.phi for pc in pieces])
+        self._sin_phi, self._cos_phi = np.sin(self._phi), np.cos(self._phi)
         self._y0 = np.zeros(n)
         self._v0 = np.zeros(n)
         self._scale = 1.0
@@ -167,20 +168,30 @@ class PiecewiseSineLaw(MotionLaw):
         self._scale = 1.0 / y_end
 
     def _piece(self, i, x):
-        """Unscaled y, y', y'', y''' of piece i (scalar index) or per-element pieces (array)."""
+        """Scaled y and its three derivatives on piece i (i: a scalar, or one index per element)."""
         u = x - self._x0[i]
         p, q, w, phi = self._p[i], self._q[i], self._w[i], self._phi[i]
+        sp, cp = self._sin_phi[i], self._cos_phi[i]
+        k = self._scale
         arg = w * u + phi
         s, c = np.sin(arg), np.cos(arg)
-        sp, cp = np.sin(phi), np.cos(phi)
-        acc = p + q * s
-        jerk = q * w * c
-        vel = self._v0[i] + p * u - (q / w) * (c - cp)
-        pos = self._y0[i] + self._v0[i] * u + 0.5 * p * u * u - (q / w) * ((s - sp) / w - cp * u)
-        k = self._scale
-        return k * pos, k * vel, k * acc, k * jerk
+        kq = k * q
+        acc = k * p + kq * s
+        jerk = (kq * w) * c
+        vel = k * self._v0[i] + (k * p) * u - (kq / w) * (c - cp)
+        pos = k * self._y0[i] + u * (k * self._v0[i] + (0.5 * k * p) * u + (kq / w) * cp) - (kq / (w * w)) * (s - sp)
+        return pos, vel, acc, jerk
 
     def _evaluate(self, x):
+        if x.ndim == 1 and x.size > 1 and np.all(x[1:] >= x[:-1]):
+            # sorted (the usual case): one contiguous slice per piece, scalar coefficients
+            cuts = np.searchsorted(x, self._x0[1:], side="left")
+            edges = [0, *cuts.tolist(), x.size]
+            out = np.empty((4, x.size))
+            for i, (a, b) in enumerate(zip(edges[:-1], edges[1:])):
+                if b > a:
+                    out[:, a:b] = self._piece(i, x[a:b])
+            return out[0], out[1], out[2], out[3]
         idx = np.searchsorted(self._x0, x, side="right") - 1
         idx = np.clip(idx, 0, len(self._x0) - 1)
         return self._piece(idx, x)

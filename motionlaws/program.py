@@ -155,6 +155,11 @@ class SegmentShape:
     def shape(self, x):
         return self._shape(np.asarray(x, dtype=float))
 
+    def shape_scaled(self, x, scales):
+        """s and its x-derivatives each multiplied by scales = (c1, c2, c3)."""
+        s, s1, s2, s3 = self._shape(x)
+        return s, s1 * scales[0], s2 * scales[1], s3 * scales[2]
+
     def _shape(self, x):  # pragma: no cover - contract
         raise NotImplementedError
 
@@ -178,9 +183,14 @@ class LawShape(SegmentShape):
         self.breakpoints = law.breakpoints
 
     def _shape(self, x):
+        return self.shape_scaled(x, (1.0, 1.0, 1.0))
+
+    def shape_scaled(self, x, scales):
         y, y1, y2, y3 = self.law.evaluate(x)
         h = self.lift
-        return self.p0 + h * y, h * y1, h * y2, h * y3
+        if not self.law.moves:
+            return np.full_like(x, self.p0), y1, y2, y3
+        return self.p0 + h * y, y1 * (h * scales[0]), y2 * (h * scales[1]), y3 * (h * scales[2])
 
     def peak(self, order):
         value, where = self.law.peaks[order - 1] if order else (0.0, 0.0)
@@ -321,40 +331,50 @@ class Program:
     def index(self) -> float:
         return float(self.axis.index or 0.0)
 
-    def master(self, theta_deg):
-        """s, ds/dθ, d²s/dθ², d³s/dθ³ at master angles θ (degrees in, θ in radians for the derivatives)."""
+    def _evaluate(self, theta_deg, rate: float):
+        """Rows s, d^k s/dθ^k · rate^k for k = 1..3 (θ in rad).
+
+        rate = 1 gives the master-angle derivatives, rate = ω the time derivatives.
+        """
         theta = np.asarray(theta_deg, dtype=float)
         flat = theta.ravel()
-        cycles = np.floor(flat / FULL_CYCLE)
-        t = flat - cycles * FULL_CYCLE
         out = np.empty((4, flat.size))
+        if flat.size == 0:
+            return tuple(row.reshape(theta.shape) for row in out)
+        if flat.min() >= 0.0 and flat.max() < FULL_CYCLE:
+            t, cycles = flat, None
+        else:
+            cycles = np.floor(flat / FULL_CYCLE)
+            t = flat - cycles * FULL_CYCLE
         seg = np.searchsorted(self.bounds, t, side="right") - 1
         np.clip(seg, 0, len(self.shapes) - 1, out=seg)
-        if flat.size > 1 and np.all(np.diff(seg) >= 0):  # sorted: contiguous slices
+        if flat.size > 1 and np.all(seg[1:] >= seg[:-1]):  # sorted: contiguous slices
             cuts = np.searchsorted(seg, np.arange(len(self.shapes) + 1))
             groups = [slice(a, b) for a, b in zip(cuts[:-1], cuts[1:])]
         else:
             groups = [np.flatnonzero(seg == k) for k in range(len(self.shapes))]
         for k, (shape, where) in enumerate(zip(self.shapes, groups)):
-            x = (t[where] - shape.theta0) / shape.span
-            s, s1, s2, s3 = shape.shape(x)
-            b = self._spans_rad[k]
+            c = rate / self._spans_rad[k]  # d/dθ·(1/rate) = (1/β) d/dx
+            x = (t[where] - shape.theta0) * (1.0 / shape.span)
+            s, s1, s2, s3 = shape.shape_scaled(x, (c, c * c, c * c * c))
             out[0, where] = s
-            out[1, where] = s1 / b
-            out[2, where] = s2 / (b * b)
-            out[3, where] = s3 / (b * b * b)
-        if self.index:
+            out[1, where] = s1
+            out[2, where] = s2
+            out[3, where] = s3
+        if cycles is not None and self.index:
             out[0] += cycles * self.index
         return tuple(row.reshape(theta.shape) for row in out)
 
+    def master(self, theta_deg):
+        """s, ds/dθ, d²s/dθ², d³s/dθ³ at master angles (degrees in; derivatives per radian)."""
+        return self._evaluate(theta_deg, 1.0)
+
     def kinematics(self, theta_deg, speed_cpm: float):
         """s, v, a, j (unit, unit/s, unit/s², unit/s³) at master angles θ (deg) and machine speed."""
-        s, d1, d2, d3 = self.master(theta_deg)
-        w = omega(speed_cpm)
-        return s, d1 * w, d2 * (w * w), d3 * (w * w * w)
+        return self._evaluate(theta_deg, omega(speed_cpm))
 
     def table(self, speed_cpm: float, step_deg: float = 1.0):
         """(θ, s, v, a, j) rows from 0 up to but not including 360 degrees."""
         count = int(math.ceil(FULL_CYCLE / step_deg - 1e-9))
-        theta = np.arange(count) * step_deg
+        theta = np.round(np.arange(count) * step_deg, 9)
         return (theta, *self.kinematics(theta, speed_cpm))
