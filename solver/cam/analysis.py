@@ -1,0 +1,193 @@
+"""One cam analysed around a full turn: arrays on a uniform grid plus refined summaries."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .errors import CamGeometryError
+from .extremes import TWO_PI, Extreme, Interval, refine_max, regions_where
+from .followers import RollerFollower
+from .geometry import Cam, CamPoints, cam_points
+
+DEFAULT_POINTS = 3600  # 0.1° of cam angle: fine enough to draw and export
+MIN_POINTS = 36  # fewer than this cannot describe a turn
+CLOSURE_TOLERANCE = 1e-9  # relative to the layout size: s(2π) must equal s(0)
+CENTRE_CLEARANCE = 1e-9  # relative: the follower must stay this far on its side of the cam centre
+
+
+@dataclass(frozen=True)
+class CurveRadii:
+    """Smallest radii of curvature of a closed curve, m, with the cam angle of each.
+
+    convex: smallest radius where the curve bulges outward (for a roller
+    profile ρ_pitch − r, which is ≤ 0 where the profile is undercut; for a
+    flat-faced profile ≤ 0 at a cusp).  concave: smallest radius magnitude
+    where the curve is hollow (None if it is nowhere hollow).
+    """
+
+    convex: Extreme
+    concave: Extreme | None
+
+
+@dataclass(frozen=True)
+class FaceUse:
+    """Where contact falls on a flat face (m, the follower's face position)."""
+
+    low: Extreme
+    high: Extreme
+
+    @property
+    def width(self) -> float:
+        """Face width the contact sweeps, m (a face must be at least this wide)."""
+        return self.high.value - self.low.value
+
+
+@dataclass(frozen=True)
+class CamAnalysis:
+    """A cam over one turn.  Lengths m, angles rad; points are (N, 2) arrays of x, y.
+
+    Arrays on the grid ``theta`` = 2πk/N, k = 0 … N−1:
+    lift s (m or rad), lift_rate ds/dθ, lift_accel d²s/dθ²; profile (cam
+    frame); pitch (cam frame, roller followers, else None); contact (point
+    of contact in the machine frame); pressure_angle (signed);
+    pitch_radius and profile_radius (signed, + convex, − concave, ±inf at an
+    inflection; pitch_radius None for flat faces); face_position (flat faces).
+
+    Summaries are true extremes, refined beyond the grid:
+    max_pressure_angle (|φ|), pitch_radii / profile_radii, face (flat faces),
+    undercut (roller: where r ≥ convex pitch radius) and cusp (flat face:
+    where Rb + s + s'' ≤ 0, or its oscillating equivalent) as intervals.
+    """
+
+    cam: Cam
+    theta: np.ndarray
+    lift: np.ndarray
+    lift_rate: np.ndarray
+    lift_accel: np.ndarray
+    profile: np.ndarray
+    contact: np.ndarray
+    pressure_angle: np.ndarray
+    profile_radius: np.ndarray
+    pitch: np.ndarray | None
+    pitch_radius: np.ndarray | None
+    face_position: np.ndarray | None
+    max_pressure_angle: Extreme
+    profile_radii: CurveRadii
+    pitch_radii: CurveRadii | None
+    face: FaceUse | None
+    undercut: tuple[Interval, ...]
+    cusp: tuple[Interval, ...]
+
+    @property
+    def follower(self):
+        return self.cam.follower
+
+    @property
+    def size(self) -> float:
+        """Scale of the layout, m (prime radius of a roller follower, else base radius)."""
+        return self.cam.follower.size
+
+
+def _xy(z: np.ndarray) -> np.ndarray:
+    return np.column_stack((z.real, z.imag))
+
+
+def _check_layout(cam: Cam, pts: CamPoints, closing: CamPoints) -> None:
+    size = cam.follower.size
+    if abs(closing.s[0] - pts.s[0]) > CLOSURE_TOLERANCE * size:
+        raise CamGeometryError("the follower motion does not return to its start over one turn", key="axis")
+    if not np.all(np.isfinite(pts.s)):
+        raise CamGeometryError("the follower motion is not finite everywhere", key="axis")
+    if pts.pitch is not None:
+        height = np.imag(pts.pitch * np.exp(1j * cam.sigma * pts.theta))
+        if height.min() <= CENTRE_CLEARANCE * size:
+            raise CamGeometryError(
+                "the roller centre drops to the cam centre: the prime circle is too small "
+                "for the lowest follower position",
+                key="prime_radius",
+            )
+    else:
+        if pts.face_distance.min() <= CENTRE_CLEARANCE * size or np.any(cam.sigma * pts.face_turn_rate >= 0):
+            raise CamGeometryError(
+                "the face stops turning against the cam (it swings as fast as the cam turns) "
+                "or reaches the cam centre: no cam can drive it",
+                key="base_radius",
+            )
+
+
+def analyse(cam: Cam, points: int = DEFAULT_POINTS) -> CamAnalysis:
+    """Analyse `cam` on `points` equally spaced cam angles over one turn.
+
+    Raises `CamGeometryError` where no cam can be laid out (the motion does
+    not close, the roller centre reaches the cam centre, a face cannot be
+    enveloped); undercut and cusps are results, not errors.
+    """
+    if int(points) != points or points < MIN_POINTS:
+        raise CamGeometryError(f"points must be a whole number of at least {MIN_POINTS}", key="points")
+    theta = TWO_PI * np.arange(int(points)) / points
+    pts = cam_points(cam, theta)
+    _check_layout(cam, pts, cam_points(cam, [TWO_PI]))
+    bps = cam.motion.breakpoints
+
+    def field(name, transform=lambda v: v):
+        return lambda th: transform(getattr(cam_points(cam, th), name))
+
+    max_phi = refine_max(field("pressure_angle", np.abs), theta, np.abs(pts.pressure_angle), bps)
+
+    undercut: tuple[Interval, ...] = ()
+    cusp: tuple[Interval, ...] = ()
+    face = None
+    pitch_radii = None
+    if isinstance(cam.follower, RollerFollower):
+        r = cam.follower.roller_radius
+        kappa = pts.pitch_curvature
+        convex = refine_max(field("pitch_curvature"), theta, kappa, bps)
+        concave = None
+        if kappa.min() < 0:
+            hollow = refine_max(field("pitch_curvature", np.negative), theta, -kappa, bps)
+            concave = Extreme(1.0 / hollow.value, hollow.at)
+        pitch_radii = CurveRadii(Extreme(1.0 / convex.value, convex.at), concave)
+        profile_radii = CurveRadii(
+            Extreme(1.0 / convex.value - r, convex.at),
+            None if concave is None else Extreme(concave.value + r, concave.at),
+        )
+        if r > 0:
+            undercut = regions_where(field("pitch_curvature", lambda k: r * k - 1.0), theta, r * kappa - 1.0)
+            if not undercut and r * convex.value >= 1.0:  # a sliver between two samples
+                undercut = (Interval(convex.at, convex.at),)
+        with np.errstate(divide="ignore"):
+            pitch_radius = 1.0 / kappa
+    else:
+        rho = pts.profile_radius
+        low = refine_max(field("profile_radius", np.negative), theta, -rho, bps)
+        profile_radii = CurveRadii(Extreme(-low.value, low.at), None)
+        cusp = regions_where(field("profile_radius", np.negative), theta, -rho)
+        if not cusp and low.value >= 0.0:
+            cusp = (Interval(low.at, low.at),)
+        lo = refine_max(field("face_position", np.negative), theta, -pts.face_position, bps)
+        hi = refine_max(field("face_position"), theta, pts.face_position, bps)
+        face = FaceUse(Extreme(-lo.value, lo.at), hi)
+        pitch_radius = None
+
+    return CamAnalysis(
+        cam=cam,
+        theta=theta,
+        lift=pts.s,
+        lift_rate=pts.s1,
+        lift_accel=pts.s2,
+        profile=_xy(pts.profile),
+        contact=_xy(pts.contact),
+        pressure_angle=pts.pressure_angle,
+        profile_radius=pts.profile_radius,
+        pitch=None if pts.pitch is None else _xy(pts.pitch),
+        pitch_radius=pitch_radius,
+        face_position=pts.face_position,
+        max_pressure_angle=max_phi,
+        profile_radii=profile_radii,
+        pitch_radii=pitch_radii,
+        face=face,
+        undercut=undercut,
+        cusp=cusp,
+    )
