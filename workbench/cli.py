@@ -22,6 +22,7 @@ from rich.console import Console
 from .axisreport import axis_json, axis_reports, axis_table
 from .projectfile import ProjectError, load_project, write_atomic
 from .presets import DEMO_PRESET, preset_names, preset_path
+from .sections import CHECK_SECTIONS, TABLE_SOURCES
 
 EXIT_OK, EXIT_OVER, EXIT_INVALID = 0, 1, 2
 
@@ -46,11 +47,6 @@ def command(name: str, help: str, arguments: Callable):
 
 
 # --- check -------------------------------------------------------------------
-
-CHECK_SECTIONS: list[Callable] = []
-"""Further parts of `check` (linkages, cams, loads): each is
-`section(project) -> (json_key, json_value, renderables, ok)` or None."""
-
 
 def _check_args(p):
     p.add_argument("file", help="project file (.toml)")
@@ -119,11 +115,6 @@ def motion_csv(project, axis_name: str, step: float) -> str:
     for row in zip(theta.tolist(), s.tolist(), v.tolist(), a.tolist(), j.tolist()):
         buf.write(",".join(repr(x + 0.0) for x in row) + "\n")
     return buf.getvalue()
-
-
-TABLE_SOURCES: list[Callable] = []
-"""Further sources for `table` (linkage outputs, torques): each is
-`source(project, name, step) -> csv text or None` for a name it knows."""
 
 
 @command("table", "CSV motion table of one axis (or output)", _table_args)

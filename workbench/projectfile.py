@@ -275,3 +275,7 @@ def save_project(project: Project, path=None) -> Path:
     write_atomic(path, dumps(project))
     project.path = path
     return path
+
+
+# Part modules register themselves with `register_part` on import.
+from . import parts  # noqa: E402,F401
