@@ -72,8 +72,8 @@ def refine_max(
         for _ in range(ZOOM_ROUNDS):
             xs = np.linspace(a, b, ZOOM_POINTS)
             ys = f(xs)
-            j = first_max(ys)
-            if ys[j] > best + TIE * abs(best):
+            j = int(np.argmax(ys))  # exact here: a tie rule would bias the angle on a flat top
+            if ys[j] > best:
                 best, at = float(ys[j]), float(xs[j])
             step = xs[1] - xs[0]
             a, b = max(a, xs[j] - step), min(b, xs[j] + step)
