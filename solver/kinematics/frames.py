@@ -1,0 +1,76 @@
+"""Body poses and their rates at many instants, as the constraint kinds see them.
+
+Every array here is shaped (k, N): k instances of one constraint kind (one
+row per instance) by N instants.  Lengths are in metres, angles in radians,
+and derivatives are taken with respect to the master angle θ in radians
+(per rad, per rad², per rad³), never with respect to time.
+
+A point with body-local coordinates s' sits at r + A(φ) s'.  The helpers
+below give the rotated offset a = A s' and its perpendicular
+perp(a) = B s' = dA/dφ s', which is all the derivative algebra needs:
+
+    (r + a)'   = r'   + perp(a) φ'
+    (r + a)''  = r''  + perp(a) φ''  − a φ'²
+    (r + a)''' = r''' + perp(a) φ''' − 3 a φ' φ'' − perp(a) φ'³
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+
+@dataclass(frozen=True)
+class Pose:
+    """Poses of k bodies at N instants: x, y (m), φ (rad), and cos φ, sin φ."""
+
+    x: np.ndarray
+    y: np.ndarray
+    phi: np.ndarray
+    c: np.ndarray
+    s: np.ndarray
+
+    def rotate(self, local: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """a = A(φ) s' for body-local vectors `local` shaped (k, 2) (m)."""
+        lx = local[:, 0:1]
+        ly = local[:, 1:2]
+        return self.c * lx - self.s * ly, self.s * lx + self.c * ly
+
+
+@dataclass(frozen=True)
+class Rates:
+    """A derivative of the poses w.r.t. master angle: x, y (m/rad^k), φ (rad/rad^k)."""
+
+    x: np.ndarray
+    y: np.ndarray
+    phi: np.ndarray
+
+
+def perp(ax: np.ndarray, ay: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The vector turned a quarter turn counter-clockwise: perp(a) = B s' when a = A s'."""
+    return -ay, ax
+
+
+def dot(ax, ay, bx, by) -> np.ndarray:
+    """Scalar product of two planar vectors given by components."""
+    return ax * bx + ay * by
+
+
+def second_free(ax, ay, w):
+    """The part of (A s')'' free of φ'': −a φ'²."""
+    w2 = w * w
+    return -ax * w2, -ay * w2
+
+
+def third_free(ax, ay, w, al):
+    """The part of (A s')''' free of φ''': −3 a φ' φ'' − perp(a) φ'³."""
+    w3 = w * w * w
+    k = 3.0 * w * al
+    return -ax * k + ay * w3, -ay * k - ax * w3
+
+
+def second_full(ax, ay, w, al):
+    """(A s')'' = perp(a) φ'' − a φ'²."""
+    w2 = w * w
+    return -ay * al - ax * w2, ax * al - ay * w2

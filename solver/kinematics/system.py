@@ -1,0 +1,220 @@
+"""A mechanism compiled for evaluation: Φ, Φq, γ, η over stacks of instants.
+
+The coordinates q of the B moving bodies are ordered body by body,
+(x, y, φ) each, so column 3b + c of Φq belongs to body b.  Rows come joint
+by joint, then driver by driver; instances of one kind are evaluated
+together.  Arrays keep the instants last: q is (n, N), Φ is (m, N), Φq is
+(m, n, N), so that every elementwise operation runs over contiguous
+instants.  Derivatives are w.r.t. master angle θ (rad); a driver holding
+coordinate g(q) to motion d(θ) contributes Φ = g(q) − d(θ), so that
+Φq q' = d', and d'', d''' add to its γ, η.
+
+Scaled quantities, used to compare rows and columns of mixed units: lengths
+divided by the model's length scale L, angles as they are.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .base import LENGTH
+from .errors import ModelError
+from .frames import Pose, Rates
+from .model import GROUND, Mechanism
+from .motion import evaluate_motion
+
+SLOT_COLUMNS = 3  # x, y, φ per body
+
+
+@dataclass
+class Group:
+    """All instances of one kind: stacked numbers and where their rows and columns go."""
+
+    kind: type
+    names: list[str]
+    par: dict[str, np.ndarray]
+    slots: np.ndarray  # (slots, k) body indices; the ground is index B
+    rows: np.ndarray  # (ROWS, k) row of each equation
+    cols: np.ndarray  # (3·slots, k) column of each partial derivative (ground: dummy columns)
+    variable: list[tuple[int, int]] = field(default_factory=list)  # (row, col) entries that vary
+
+
+def _stack(bindings, key: str) -> np.ndarray:
+    return np.stack([np.atleast_1d(np.asarray(b.params[key], dtype=float)) for b in bindings])
+
+
+class System:
+    """Evaluates the constraint equations of a `Mechanism` and their derivatives."""
+
+    def __init__(self, mechanism: Mechanism):
+        self.mechanism = mechanism
+        self.bodies = mechanism.moving
+        self.B = len(self.bodies)
+        self.n = SLOT_COLUMNS * self.B
+        index = {name: b for b, name in enumerate(self.bodies)}
+        index[GROUND] = self.B
+        self.length = mechanism.length_scale()
+
+        entries = [(j.name, j.resolve(mechanism)) for j in mechanism.joints.values()]
+        drivers = list(mechanism.drivers.values())
+        entries += [(d.name, d.coordinate.resolve(mechanism)) for d in drivers]
+        self.motions = [d.motion for d in drivers]
+        self.driver_names = [d.name for d in drivers]
+
+        self.row_names: list[str] = []  # joint or driver owning each row
+        self.row_units: list[str] = []
+        by_kind: dict[type, list[tuple[str, object, object, list[int]]]] = {}
+        for number, (name, item) in enumerate(entries):
+            binding = item.bind(mechanism)
+            rows = list(range(len(self.row_names), len(self.row_names) + item.ROWS))
+            self.row_names += [name] * item.ROWS
+            self.row_units += list(item.ROW_UNITS)
+            by_kind.setdefault(type(item), []).append((name, item, binding, rows))
+        self.m = len(self.row_names)
+        self.driver_rows = np.arange(self.m - len(drivers), self.m)
+        self.groups = [self._group(kind, items, index) for kind, items in by_kind.items()]
+
+        self.row_scale = np.array([1.0 / self.length if u == LENGTH else 1.0 for u in self.row_units])
+        self.col_scale = np.tile([self.length, self.length, 1.0], self.B)
+        self._template = np.zeros((self.m, self.n + SLOT_COLUMNS))
+        for g in self.groups:
+            self._fill_constants(g)
+
+    # -- compile ---------------------------------------------------------------
+    def _group(self, kind, items, index) -> Group:
+        bindings = [b for _, _, b, _ in items]
+        slots = np.array([[index[name] for name in b.bodies] for b in bindings]).T
+        rows = np.array([r for _, _, _, r in items]).T
+        cols = np.concatenate([SLOT_COLUMNS * slots[t][None] + np.arange(SLOT_COLUMNS)[:, None] for t in range(len(slots))])
+        par = {key: _stack(bindings, key) for key in bindings[0].params}
+        return Group(kind, [n for n, _, _, _ in items], par, slots, rows, cols)
+
+    def _fill_constants(self, g: Group) -> None:
+        """Store constant Φq entries once; remember which entries vary."""
+        k = g.slots.shape[1]
+        probe = self._poses(np.zeros((self.n, 1)))
+        poses = self._slot_poses(g, probe)
+        for r, row in enumerate(g.kind.jacobian(g.par, *poses)):
+            if len(row) != g.cols.shape[0]:
+                raise ModelError(f"kind {g.kind.__name__} gives {len(row)} partials per row, not {g.cols.shape[0]}", g.names[0])
+            for c, entry in enumerate(row):
+                if np.ndim(entry) == 0:
+                    self._template[g.rows[r], g.cols[c]] = float(entry)
+                else:
+                    g.variable.append((r, c))
+        assert k == len(g.names)
+
+    # -- poses ---------------------------------------------------------------
+    def _padded(self, q: np.ndarray) -> np.ndarray:
+        out = np.zeros((self.n + SLOT_COLUMNS, q.shape[1]))
+        out[: self.n] = q
+        return out
+
+    def _poses(self, q: np.ndarray):
+        p = self._padded(q)
+        phi = p[2::3]
+        return p[0::3], p[1::3], phi, np.cos(phi), np.sin(phi)
+
+    def _rates(self, dq: np.ndarray):
+        p = self._padded(dq)
+        return p[0::3], p[1::3], p[2::3]
+
+    @staticmethod
+    def _slot_poses(g: Group, arrays) -> list[Pose]:
+        return [Pose(*(a[idx] for a in arrays)) for idx in g.slots]
+
+    @staticmethod
+    def _slot_rates(g: Group, arrays) -> list[Rates]:
+        return [Rates(*(a[idx] for a in arrays)) for idx in g.slots]
+
+    # -- evaluation ----------------------------------------------------------
+    def drive(self, theta: np.ndarray) -> np.ndarray:
+        """(4, drivers, N): each driver's d, d', d'', d''' at master angles θ (rad)."""
+        theta = np.asarray(theta, dtype=float)
+        out = np.empty((4, len(self.motions), theta.size))
+        for i, motion in enumerate(self.motions):
+            out[:, i] = evaluate_motion(motion, theta)
+        return out
+
+    def _scatter(self, out, g: Group, values) -> None:
+        for r, value in enumerate(values):
+            out[g.rows[r]] = value
+
+    def residual(self, q: np.ndarray, drive: np.ndarray) -> np.ndarray:
+        """Φ (m, N) at coordinates q (n, N) with driver values `drive` from `drive()`."""
+        arrays = self._poses(q)
+        out = np.empty((self.m, q.shape[1]))
+        for g in self.groups:
+            self._scatter(out, g, g.kind.residual(g.par, *self._slot_poses(g, arrays)))
+        out[self.driver_rows] -= drive[0]
+        return out
+
+    def residual_jacobian(self, q: np.ndarray, drive: np.ndarray):
+        """Φ (m, N) and Φq (m, n, N) at q (n, N)."""
+        arrays = self._poses(q)
+        N = q.shape[1]
+        res = np.empty((self.m, N))
+        jac = np.empty((self.m, self.n + SLOT_COLUMNS, N))
+        jac[...] = self._template[:, :, None]
+        for g in self.groups:
+            poses = self._slot_poses(g, arrays)
+            self._scatter(res, g, g.kind.residual(g.par, *poses))
+            if g.variable:
+                partials = g.kind.jacobian(g.par, *poses)
+                for r, c in g.variable:
+                    jac[g.rows[r], g.cols[c]] = partials[r][c]
+        res[self.driver_rows] -= drive[0]
+        return res, jac[:, : self.n]
+
+    def jacobian(self, q: np.ndarray) -> np.ndarray:
+        """Φq (m, n, N) at q (n, N)."""
+        return self.residual_jacobian(q, np.zeros((4, len(self.motions), q.shape[1])))[1]
+
+    def velocity_rhs(self, drive: np.ndarray) -> np.ndarray:
+        """−Φθ (m, N): d' in the driver rows, zero elsewhere."""
+        out = np.zeros((self.m, drive.shape[2]))
+        out[self.driver_rows] = drive[1]
+        return out
+
+    def gamma(self, q, dq, drive) -> np.ndarray:
+        """γ (m, N) at q, q' (n, N); Φq q'' = γ."""
+        arrays, rates = self._poses(q), self._rates(dq)
+        out = np.empty((self.m, q.shape[1]))
+        for g in self.groups:
+            self._scatter(out, g, g.kind.gamma(g.par, self._slot_poses(g, arrays), self._slot_rates(g, rates)))
+        out[self.driver_rows] += drive[2]
+        return out
+
+    def eta(self, q, dq, ddq, drive) -> np.ndarray:
+        """η (m, N) at q, q', q'' (n, N); Φq q''' = η."""
+        arrays, rates, accels = self._poses(q), self._rates(dq), self._rates(ddq)
+        out = np.empty((self.m, q.shape[1]))
+        for g in self.groups:
+            poses = self._slot_poses(g, arrays)
+            vals = g.kind.eta(g.par, poses, self._slot_rates(g, rates), self._slot_rates(g, accels))
+            self._scatter(out, g, vals)
+        out[self.driver_rows] += drive[3]
+        return out
+
+    # -- scaling and naming --------------------------------------------------
+    def scaled_step(self, dq: np.ndarray) -> np.ndarray:
+        """max |Δq| per instant, lengths in units of L, angles in rad."""
+        return np.max(np.abs(dq / self.col_scale[:, None]), axis=0)
+
+    def scaled_residual(self, res: np.ndarray) -> np.ndarray:
+        """max |Φ| per instant, length rows in units of L, angle rows in rad."""
+        return np.max(np.abs(res * self.row_scale[:, None]), axis=0)
+
+    def scaled_jacobian(self, jac: np.ndarray) -> np.ndarray:
+        """Φq with rows and columns scaled to be dimensionless (m, n, N)."""
+        return jac * self.row_scale[:, None, None] * self.col_scale[None, :, None]
+
+    def initial_guess(self) -> np.ndarray:
+        """The rough initial coordinates of the moving bodies, (n,)."""
+        return np.array([v for b in self.bodies for v in self.mechanism.bodies[b].guess], dtype=float)
+
+    def coordinate_names(self) -> list[str]:
+        return [f"{b}.{c}" for b in self.bodies for c in ("x", "y", "phi")]
+
