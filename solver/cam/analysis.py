@@ -15,6 +15,8 @@ DEFAULT_POINTS = 3600  # 0.1° of cam angle: fine enough to draw and export
 MIN_POINTS = 36  # fewer than this cannot describe a turn
 CLOSURE_TOLERANCE = 1e-9  # relative to the layout size: s(2π) must equal s(0)
 CENTRE_CLEARANCE = 1e-9  # relative: the follower must stay this far on its side of the cam centre
+JUMP_PROBE = 1e-9  # rad either side of a breakpoint where ds/dθ is compared
+JUMP_TOLERANCE = 1e-6  # a ds/dθ jump below this share of the largest |ds/dθ| counts as none
 
 
 @dataclass(frozen=True)
@@ -58,7 +60,10 @@ class CamAnalysis:
     Summaries are true extremes, refined beyond the grid:
     max_pressure_angle (|φ|), pitch_radii / profile_radii, face (flat faces),
     undercut (roller: where r ≥ convex pitch radius) and cusp (flat face:
-    where Rb + s + s'' ≤ 0, or its oscillating equivalent) as intervals.
+    where Rb + s + s'' ≤ 0, or its oscillating equivalent) as intervals;
+    corners: cam angles (rad) where ds/dθ jumps — the follower meets a
+    corner of the cam there (infinite acceleration), and the outline has a
+    step that no smooth profile closes.
     """
 
     cam: Cam
@@ -79,6 +84,7 @@ class CamAnalysis:
     face: FaceUse | None
     undercut: tuple[Interval, ...]
     cusp: tuple[Interval, ...]
+    corners: tuple[float, ...] = ()
 
     @property
     def follower(self):
@@ -117,6 +123,15 @@ def _check_layout(cam: Cam, pts: CamPoints, closing: CamPoints) -> None:
             )
 
 
+def _velocity_jumps(cam: Cam, breakpoints, scale: float) -> tuple[float, ...]:
+    if not breakpoints:
+        return ()
+    b = np.asarray(breakpoints, dtype=float)
+    left = cam.motion(b - JUMP_PROBE)[1]
+    right = cam.motion(b + JUMP_PROBE)[1]
+    return tuple(float(x) for x in b[np.abs(right - left) > JUMP_TOLERANCE * max(scale, 1e-300)])
+
+
 def analyse(cam: Cam, points: int = DEFAULT_POINTS) -> CamAnalysis:
     """Analyse `cam` on `points` equally spaced cam angles over one turn.
 
@@ -130,6 +145,7 @@ def analyse(cam: Cam, points: int = DEFAULT_POINTS) -> CamAnalysis:
     pts = cam_points(cam, theta)
     _check_layout(cam, pts, cam_points(cam, [TWO_PI]))
     bps = cam.motion.breakpoints
+    corners = _velocity_jumps(cam, bps, float(np.max(np.abs(pts.s1))))
 
     def field(name, transform=lambda v: v):
         return lambda th: transform(getattr(cam_points(cam, th), name))
@@ -190,4 +206,5 @@ def analyse(cam: Cam, points: int = DEFAULT_POINTS) -> CamAnalysis:
         face=face,
         undercut=undercut,
         cusp=cusp,
+        corners=corners,
     )

@@ -4,8 +4,8 @@ The defaults are rules of thumb (common practice, no single source):
 pressure angle ≤ 30° for translating roller followers and ≤ 35–45° for
 oscillating ones; the smallest convex radius of curvature of the pitch curve
 at least 2–3 × the roller radius.  Undercut (roller radius ≥ convex pitch
-radius) and cusps (flat-face profile radius ≤ 0) fail always: no cam can be
-cut there.
+radius), cusps (flat-face profile radius ≤ 0) and corners (a jump in
+ds/dθ) fail always: no smooth cam can be cut there.
 """
 
 from __future__ import annotations
@@ -51,8 +51,10 @@ class CamCheck:
 
     quantity: "pressure_angle" (rad), "curvature_ratio" (–), "min_radius" (m),
     "undercut" (value: smallest convex pitch radius, limit: roller radius, m),
-    "cusp" (value: smallest profile radius, limit 0, m) or "face_width"
-    (value: width the contact needs about the line of travel, m).
+    "cusp" (value: smallest profile radius, limit 0, m), "face_width"
+    (value: width the contact needs about the line of travel, m) or
+    "corner" (value: number of cam angles where ds/dθ jumps, limit 0; at:
+    the first of them).
     used: share of the limit taken (None for cusp); ok: within the limit.
     at: cam angle (rad) where the value occurs.
     """
@@ -118,6 +120,8 @@ def check_cam(analysis: CamAnalysis, limits: CamLimits | None = None) -> CamVerd
             need = 2.0 * abs(side.value)
             used = need / follower.face_width
             checks.append(CamCheck("face_width", need, follower.face_width, side.at, used, used <= 1.0))
+    if analysis.corners:
+        checks.append(CamCheck("corner", float(len(analysis.corners)), 0.0, analysis.corners[0], None, False))
     if limits.min_radius is not None:
         used = _ratio(limits.min_radius, convex.value) if convex.value > 0 else math.inf
         checks.append(CamCheck("min_radius", convex.value, limits.min_radius, convex.at, used, used <= 1.0))
