@@ -284,14 +284,24 @@ def insert_segment(project: Project, axis_name: str, after: int, law: str, span:
     return _with_segments(project, axis, segments)
 
 
+def default_heir(axis: Axis, index: int) -> int:
+    """Who receives a deleted segment's span: a neighbouring dwell (before, then after), else the one before."""
+    n = len(axis.segments)
+    before, after = (index - 1) % n, (index + 1) % n
+    for j in (before, after):
+        if j != index and axis.segments[j].law == "dwell":
+            return j
+    return before
+
+
 def delete_segment(project: Project, axis_name: str, index: int, heir: int | None = -1) -> Project:
-    """Delete a segment; `heir` receives its span (-1: the one before it, or after for the first)."""
+    """Delete a segment; `heir` receives its span (-1: `default_heir`)."""
     axis = project.axes[axis_index(project, axis_name)]
     seg = _check_segment(axis, index)
     if len(axis.segments) < 2:
         raise EditError("delete: an axis needs at least one segment", "segment")
     if heir == -1:
-        heir = index - 1 if index > 0 else 1
+        heir = default_heir(axis, index)
     if heir is None or heir == index or not 0 <= heir < len(axis.segments):
         raise EditError("delete: choose a segment to receive the freed span", "segment")
     segments = list(axis.segments)

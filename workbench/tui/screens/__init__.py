@@ -1,0 +1,1 @@
+"""Modal dialogs: typed edits, the law list, limits, files, confirmations and help."""

@@ -1,0 +1,93 @@
+"""Insert a segment after the one under the cursor, its span taken from a chosen segment."""
+
+from __future__ import annotations
+
+from typing import Any, Callable
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.screen import ModalScreen
+from textual.widgets import Input, Label, Select, Static
+
+from motionlaws import law_ids
+
+from ...editing import EditError, parse_number
+
+AddAttempt = Callable[[str, float, float | None, int], Any]
+
+
+class AddSegmentDialog(ModalScreen):
+    """Law, span [deg], end position (moving laws) and the segment that gives the span."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel", tooltip="Add nothing")]
+
+    def __init__(self, title: str, unit: str, position: float, donors: list[tuple[str, int]],
+                 donor: int, attempt: AddAttempt, explain: Callable[[Any], str]):
+        super().__init__()
+        self.title_text = title
+        self.unit = unit
+        self.position = position
+        self.donors = donors
+        self.donor = donor
+        self.attempt = attempt
+        self.explain = explain
+        self.error: str | None = None
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(Text(self.title_text), classes="dialog-title")
+            with Horizontal(classes="field"):
+                yield Label(Text("law"), classes="field-label")
+                yield Select([(law, law) for law in law_ids()], value="dwell", allow_blank=False, compact=True, id="law")
+            with Horizontal(classes="field"):
+                yield Label(Text("span [deg]"), classes="field-label")
+                yield Input("30", id="span", select_on_focus=True, compact=True)
+            with Horizontal(classes="field"):
+                yield Label(Text(f"to [{self.unit}]"), classes="field-label")
+                yield Input(f"{self.position:g}", id="to", select_on_focus=True, compact=True)
+            with Horizontal(classes="field"):
+                yield Label(Text("span from"), classes="field-label")
+                yield Select(self.donors, value=self.donor, allow_blank=False, compact=True, id="donor")
+            yield Static("", id="feedback")
+            yield Label(Text("tab: next field   enter: add   esc: cancel"), classes="dialog-hint")
+
+    def on_mount(self) -> None:
+        self.query_one("#law", Select).focus()
+        self._check()
+
+    def _check(self):
+        feedback = self.query_one("#feedback", Static)
+        law = str(self.query_one("#law", Select).value)
+        self.query_one("#to", Input).disabled = law == "dwell"
+        try:
+            span = parse_number(self.query_one("#span", Input).value, "span", positive=True,
+                                units=("deg", "°"))
+            to = None if law == "dwell" else parse_number(self.query_one("#to", Input).value, "to",
+                                                           units=(self.unit,))
+            result = self.attempt(law, span, to, int(self.query_one("#donor", Select).value))
+        except EditError as exc:
+            self.error = exc.message
+            feedback.update(Text(f"✗ {exc.message}", style="bold red"))
+            return None
+        self.error = None
+        feedback.update(Text(f"✓ {self.explain(result)}", style="green"))
+        return result
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        self._check()
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        self._check()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        event.stop()
+        result = self._check()
+        if result is None:
+            self.app.bell()
+        else:
+            self.dismiss(result)
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)

@@ -1,0 +1,39 @@
+"""A question with a few one-key answers (the quit guard, opening over unsaved changes)."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Vertical
+from textual.screen import ModalScreen
+from textual.widgets import Label
+
+
+class ChoiceDialog(ModalScreen[str | None]):
+    """Answers are (key, word, description); pressing a key dismisses with its word."""
+
+    BINDINGS = [Binding("escape", "choose('')", "Cancel", tooltip="Go back without doing anything")]
+
+    def __init__(self, title: str, question: str, answers: list[tuple[str, str, str]]):
+        super().__init__()
+        self.title_text = title
+        self.question = question
+        self.answers = answers
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(self.title_text, classes="dialog-title")
+            yield Label(self.question)
+            for key, _, text in self.answers:
+                yield Label(f"  [b]{key}[/b]  {text}")
+            yield Label("  [b]esc[/b]  cancel", classes="dialog-hint")
+
+    def on_key(self, event) -> None:
+        for key, word, _ in self.answers:
+            if event.key == key:
+                event.stop()
+                self.dismiss(word)
+                return
+
+    def action_choose(self, word: str) -> None:
+        self.dismiss(word or None)

@@ -1,0 +1,97 @@
+"""A dialog that takes one typed value and tries it on the model as it is typed.
+
+The dialog knows nothing about projects: it is given `attempt(text, choice)`,
+which returns the edited model or raises `EditError` with the reason.  The
+reason (or a preview of the change) shows under the input at every key;
+Enter accepts only what the model accepts, Escape leaves everything as it was.
+"""
+
+from __future__ import annotations
+
+from typing import Any, Callable
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Vertical
+from textual.screen import ModalScreen
+from textual.widgets import Input, Label, Select, Static
+
+from ...editing import EditError
+
+Attempt = Callable[[str, Any], Any]
+Explain = Callable[[Any], str]
+
+
+class EditDialog(ModalScreen):
+    """Type a value (and optionally pick who gives or takes the difference)."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel", tooltip="Close without changing anything")]
+
+    def __init__(self, title: str, prompt: str, value: str, attempt: Attempt,
+                 explain: Explain | None = None, choices: list[tuple[str, Any]] | None = None,
+                 choice_prompt: str = "", choice: Any = None, hint: str = ""):
+        super().__init__()
+        self.title_text = title
+        self.prompt = prompt
+        self.value = value
+        self.attempt = attempt
+        self.explain = explain
+        self.choices = choices
+        self.choice_prompt = choice_prompt
+        self.choice = choice
+        self.hint = hint
+        self.error: str | None = None
+        """The reason the typed value is refused (None when it is accepted)."""
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(Text(self.title_text), classes="dialog-title")
+            yield Label(Text(self.prompt))
+            yield Input(self.value, id="value", select_on_focus=True, compact=True)
+            if self.choices:
+                yield Label(Text(self.choice_prompt))
+                yield Select(self.choices, value=self.choice, allow_blank=False, compact=True, id="choice")
+            yield Static("", id="feedback")
+            yield Label(Text(self.hint or "enter: apply   esc: cancel"), classes="dialog-hint")
+
+    def on_mount(self) -> None:
+        self.query_one("#value", Input).focus()
+        self._check()
+
+    def _current(self) -> tuple[str, Any]:
+        text = self.query_one("#value", Input).value
+        choice = self.query_one("#choice", Select).value if self.choices else None
+        return text, choice
+
+    def _check(self) -> Any:
+        """Try the typed value; show the reason or the preview; return the result or None."""
+        feedback = self.query_one("#feedback", Static)
+        text, choice = self._current()
+        try:
+            result = self.attempt(text, choice)
+        except EditError as exc:
+            self.error = exc.message
+            feedback.update(Text(f"✗ {exc.message}", style="bold red"))
+            return None
+        self.error = None
+        preview = self.explain(result) if self.explain else ""
+        feedback.update(Text(f"✓ {preview}" if preview else "✓ ok", style="green"))
+        return result
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        self._check()
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        self._check()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        event.stop()
+        result = self._check()
+        if result is not None:
+            self.dismiss(result)
+        else:
+            self.app.bell()
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)

@@ -1,0 +1,243 @@
+"""The Axes view: one axis's segments, peaks against limits, joins and motion plots.
+
+Keys act on the segment under the cursor.  Every edit goes through a pure
+operation of `workbench.editing` (via `axes_dialogs` where something must be
+typed) and leaves as a `ProjectEdited` message; the app keeps the history
+and sends the new state back down with `show_project`.
+"""
+
+from __future__ import annotations
+
+from typing import Callable
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.widgets import Static
+
+from ... import editing
+from ...editing import EditError
+from ...projectfile import Project
+from ..compute import AxisResult
+from ..format import axis_verdict, number
+from ..messages import ProjectEdited, Status
+from ..widgets.motion_plots import PlotPanel
+from ..widgets.peaks_panel import PeaksPanel
+from ..widgets.segment_table import SegmentTable
+from . import axes_dialogs as dialogs
+from .base import WorkbenchView
+
+
+class AxisBar(Static):
+    """Which axis, its unit, the machine speed and the axis's verdict, in one line."""
+
+    DEFAULT_CSS = "AxisBar { height: 1; }"
+
+
+class AxesView(WorkbenchView):
+    view_id = "axes"
+    title = "Axes"
+
+    BINDINGS = [
+        Binding("enter", "edit_cell", "Edit", priority=True,
+                tooltip="Edit the cell under the cursor: law, span, end position or time", id="edit"),
+        Binding("l", "law", "Law", show=False, tooltip="Choose the law of the segment from the list with Cv, Ca, Cj"),
+        Binding("a", "add", "Add", tooltip="Insert a segment after this one; its span comes from another"),
+        Binding("d,delete", "delete", "Del", tooltip="Delete the segment; a neighbouring dwell takes its span"),
+        Binding("s", "split", "Split", show=False, tooltip="Halve the segment into two of the same law meeting halfway"),
+        Binding("left_square_bracket", "move(-1)", "Earlier", show=False, key_display="[",
+                tooltip="Move the segment one place earlier in the cycle"),
+        Binding("right_square_bracket", "move(1)", "Later", show=False, key_display="]",
+                tooltip="Move the segment one place later in the cycle"),
+        Binding("m", "speed", "Speed", tooltip="Change the machine speed (cycles/min)"),
+        Binding("L", "limits", "Limits", key_display="L",
+                tooltip="Velocity, acceleration and jerk limits of this axis"),
+        Binding("comma", "cycle_axis(-1)", "Prev axis", key_display=",", show=False,
+                tooltip="Show the previous axis"),
+        Binding("full_stop", "cycle_axis(1)", "Next axis", key_display=".", show=False,
+                tooltip="Show the next axis"),
+        Binding("p", "next_plot", "Plot", show=False, tooltip="Show the next quantity when one plot fits"),
+    ]
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.project: Project | None = None
+        self.axis_name: str | None = None
+        """The axis on view (None for a project without axes)."""
+        self.results: dict[str, AxisResult] = {}
+        self.results_for: Project | None = None
+        """The project the results belong to (they may lag one edit behind)."""
+        self.plot_chosen = False
+        """True once the user picked the plot; until then a short window shows the worst quantity."""
+        self._cursor_after: int | None = None
+        """Row for the cursor once the next edit comes back (a moved or added segment)."""
+
+    def compose(self) -> ComposeResult:
+        yield AxisBar(id="axis-bar")
+        yield SegmentTable(id="segments")
+        yield PeaksPanel(id="peaks")
+        yield PlotPanel(id="plots")
+
+    # --- state down ---------------------------------------------------------
+
+    def show_project(self, project: Project) -> None:
+        self.project = project
+        names = [a.name for a in project.axes]
+        if self.axis_name not in names:
+            self.axis_name = names[0] if names else None
+        self._refresh_axis()
+
+    def show_results(self, project: Project, results: dict[str, AxisResult]) -> None:
+        self.results, self.results_for = results, project
+        self._refresh_numbers()
+
+    def select_axis(self, name: str) -> None:
+        self.axis_name = name
+        self._refresh_axis()
+
+    def _refresh_axis(self) -> None:
+        table = self.query_one(SegmentTable)
+        if self.project is None or self.axis_name is None:
+            table.clear()
+            self.query_one(AxisBar).update("this project has no axes: add an [[axis]] table to the file")
+            return
+        table.show(self.project.axis(self.axis_name), self.project.speed)
+        if self._cursor_after is not None:
+            row = min(self._cursor_after, table.row_count - 1)
+            table.move_cursor(row=max(row, 0), animate=False)
+            self._cursor_after = None
+        self._refresh_numbers()
+
+    @property
+    def result(self) -> AxisResult | None:
+        return self.results.get(self.axis_name) if self.axis_name else None
+
+    def _refresh_numbers(self) -> None:
+        if self.project is None or self.axis_name is None:
+            return
+        axis = self.project.axis(self.axis_name)
+        names = [a.name for a in self.project.axes]
+        result = self.result
+        fresh = result is not None and self.results_for is self.project
+        bar = Text.assemble(
+            ("axis ", "dim"), (f"◂ {axis.name} ▸", "bold"),
+            (f" {names.index(axis.name) + 1}/{len(names)} [{axis.unit}]", "dim"),
+            (" (, .)" if len(names) > 1 else "", "dim"),
+            ("  machine ", "dim"), number(self.project.speed, "cycles/min"), "  ",
+        )
+        if result is not None:
+            bar.append_text(axis_verdict(result.report.ok, axis.limits.any))
+        if not fresh:
+            bar.append("  (computing…)", style="dim")
+        self.query_one(AxisBar).update(bar)
+        self.query_one(PeaksPanel).show(result)
+        panel = self.query_one(PlotPanel)
+        if result is not None and not self.plot_chosen and result.report.checks:
+            worst = max(result.report.checks, key=lambda c: c.used)
+            panel.shown = worst.quantity
+        panel.show(result)
+
+    def focus_first(self) -> None:
+        self.query_one(SegmentTable).focus()
+
+    # --- edits up -----------------------------------------------------------
+
+    @property
+    def _index(self) -> int:
+        return self.query_one(SegmentTable).segment_index
+
+    def _open(self, build: Callable[[], tuple]) -> None:
+        """Open a dialog built from the current project; its result becomes an edit."""
+        if self.project is None or self.axis_name is None:
+            return
+        try:
+            screen, note = build()
+        except EditError as exc:
+            self.post_message(Status(exc.message, error=True))
+            self.app.bell()
+            return
+
+        def done(project: Project | None) -> None:
+            if project is None:
+                self._cursor_after = None
+            else:
+                self.post_message(ProjectEdited(project, note))
+
+        self.app.push_screen(screen, done)
+
+    def _apply(self, edit: Callable[[], Project], note: str) -> bool:
+        """Run an edit that needs no typing; a refusal goes to the status line."""
+        if self.project is None or self.axis_name is None:
+            return False
+        try:
+            project = edit()
+        except EditError as exc:
+            self._cursor_after = None
+            self.post_message(Status(f"refused — {exc.message}", error=True))
+            self.app.bell()
+            return False
+        self.post_message(ProjectEdited(project, note))
+        return True
+
+    def action_edit_cell(self) -> None:
+        column = self.query_one(SegmentTable).column_key
+        p, name, i = self.project, self.axis_name, self._index
+        builders = {
+            "number": lambda: dialogs.law_dialog(p, name, i),
+            "law": lambda: dialogs.law_dialog(p, name, i),
+            "span": lambda: dialogs.span_dialog(p, name, i),
+            "ends": lambda: dialogs.to_dialog(p, name, i),
+            "time": lambda: dialogs.time_dialog(p, name, i),
+        }
+        self._open(builders[column])
+
+    def action_law(self) -> None:
+        self._open(lambda: dialogs.law_dialog(self.project, self.axis_name, self._index))
+
+    def action_add(self) -> None:
+        self._cursor_after = self._index + 1
+        self._open(lambda: dialogs.add_dialog(self.project, self.axis_name, self._index))
+
+    def action_speed(self) -> None:
+        self._open(lambda: dialogs.speed_dialog(self.project))
+
+    def action_limits(self) -> None:
+        self._open(lambda: dialogs.limits_dialog(self.project, self.axis_name))
+
+    def action_delete(self) -> None:
+        i = self._index
+        axis = self.project.axis(self.axis_name) if self.project else None
+        if axis is None:
+            return
+        heir = editing.default_heir(axis, i)
+        seg = axis.segments[i]
+        note = f"deleted segment {i + 1} ({seg.law}, {seg.span:g}°; its span went to segment {heir + 1})"
+        self._apply(lambda: editing.delete_segment(self.project, self.axis_name, i, heir), note)
+
+    def action_split(self) -> None:
+        i = self._index
+        self._apply(lambda: editing.split_segment(self.project, self.axis_name, i),
+                    f"split segment {i + 1} in two")
+
+    def action_move(self, offset: int) -> None:
+        i = self._index
+        word = "earlier" if offset < 0 else "later"
+        self._cursor_after = i + offset
+        self._apply(lambda: editing.move_segment(self.project, self.axis_name, i, offset),
+                    f"moved segment {i + 1} {word}")
+
+    def action_cycle_axis(self, step: int) -> None:
+        if self.project is None or not self.project.axes:
+            return
+        names = [a.name for a in self.project.axes]
+        i = names.index(self.axis_name) if self.axis_name in names else 0
+        self.select_axis(names[(i + step) % len(names)])
+
+    def action_next_plot(self) -> None:
+        panel = self.query_one(PlotPanel)
+        self.plot_chosen = True
+        shown = panel.next_quantity()
+        if not panel.single:
+            self.post_message(Status("all four plots are on view; p picks one when the window is small"))
+        else:
+            self.post_message(Status(f"plot: {shown}"))

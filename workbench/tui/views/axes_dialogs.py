@@ -1,0 +1,151 @@
+"""Dialogs of the Axes view, each wired to one pure edit of `workbench.editing`.
+
+Every function returns a screen whose result is the edited project (or None),
+plus the note that names the edit for undo and the status line.
+"""
+
+from __future__ import annotations
+
+from textual.screen import ModalScreen
+
+from ... import editing
+from ...editing import EditError, parse_number, segment_ends
+from ...projectfile import Project
+from ..format import number
+from ..screens.add_segment import AddSegmentDialog
+from ..screens.edit_value import EditDialog
+from ..screens.law_picker import LawPicker
+from ..screens.limits import LimitsDialog
+
+DEGREE_UNITS = ("deg", "°")
+
+
+def describe(old: Project, new: Project, axis_name: str) -> str:
+    """What changed in an axis, in a line: spans, ends and laws that differ."""
+    if new.speed != old.speed:
+        return f"machine {number(old.speed, 'cycles/min')} → {number(new.speed, 'cycles/min')}"
+    a, b = old.axis(axis_name), new.axis(axis_name)
+    if len(a.segments) != len(b.segments):
+        return f"{len(b.segments)} segments: " + ", ".join(f"{s.law} {s.span:g}°" for s in b.segments)
+    parts = []
+    ends_a, ends_b = segment_ends(a), segment_ends(b)
+    for i, (sa, sb) in enumerate(zip(a.segments, b.segments), start=1):
+        if sa.law != sb.law:
+            parts.append(f"segment {i}: {sa.law} → {sb.law}")
+        if sa.span != sb.span:
+            parts.append(f"segment {i} ({sb.law}): {sa.span:g}° → {sb.span:g}°")
+        if ends_a[i - 1][1] != ends_b[i - 1][1] and sa.law == sb.law:
+            parts.append(f"segment {i} ends at {ends_b[i - 1][1]:g} {a.unit} (was {ends_a[i - 1][1]:g})")
+    if a.limits != b.limits:
+        parts.append("limits changed")
+    return "; ".join(parts) if parts else "no change"
+
+
+def _choices(project: Project, axis_name: str, skip: int | None) -> list[tuple[str, int]]:
+    axis = project.axis(axis_name)
+    return [(f"{i + 1} {s.law} {s.span:g}°", i) for i, s in enumerate(axis.segments) if i != skip]
+
+
+def span_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen, str]:
+    axis = project.axis(axis_name)
+    seg = axis.segments[index]
+    donor = editing.default_donor(axis, index)
+
+    def attempt(text, choice):
+        span = parse_number(text, "span", positive=True, units=DEGREE_UNITS)
+        return editing.set_span(project, axis_name, index, span, choice)
+
+    screen = EditDialog(
+        f"Span of segment {index + 1} ({seg.law}), axis {axis_name}",
+        "span [deg] — spans sum to 360°, so another segment gives or takes the difference:",
+        f"{seg.span:g}", attempt, lambda p: describe(project, p, axis_name),
+        choices=_choices(project, axis_name, index) or None,
+        choice_prompt="difference taken from / given to", choice=donor,
+    )
+    return screen, f"span of segment {index + 1}"
+
+
+def time_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen, str]:
+    axis = project.axis(axis_name)
+    seg = axis.segments[index]
+    ms = seg.span / 360.0 * 60_000.0 / project.speed
+
+    def attempt(text, choice):
+        value = parse_number(text, "time", positive=True, units=("ms",))
+        return editing.set_duration(project, axis_name, index, value / 1000.0, choice)
+
+    screen = EditDialog(
+        f"Time of segment {index + 1} ({seg.law}) at {number(project.speed, 'cycles/min')}",
+        "time [ms] — sets the span at the machine speed; another segment gives or takes the difference:",
+        f"{ms:.4g}", attempt, lambda p: describe(project, p, axis_name),
+        choices=_choices(project, axis_name, index) or None,
+        choice_prompt="difference taken from / given to", choice=editing.default_donor(axis, index),
+    )
+    return screen, f"time of segment {index + 1}"
+
+
+def to_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen, str]:
+    axis = project.axis(axis_name)
+    seg = axis.segments[index]
+    start, end = segment_ends(axis)[index]
+    if seg.law == "dwell":
+        raise EditError(f"segment {index + 1} is a dwell: it holds {number(start, axis.unit)}; "
+                        "change its law (l) to make it move")
+
+    def attempt(text, _choice):
+        return editing.set_to(project, axis_name, index, parse_number(text, "to", units=(axis.unit,)))
+
+    screen = EditDialog(
+        f"End position of segment {index + 1} ({seg.law}), axis {axis_name}",
+        f"to [{axis.unit}] — it starts at {number(start, axis.unit)}; the last segment must end "
+        f"at the axis start{' + index' if axis.index else ''}:",
+        f"{end:g}", attempt, lambda p: describe(project, p, axis_name),
+    )
+    return screen, f"end position of segment {index + 1}"
+
+
+def law_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen, str]:
+    seg = project.axis(axis_name).segments[index]
+    screen = LawPicker(f"Law of segment {index + 1} ({seg.law}, {seg.span:g}°), axis {axis_name}",
+                       seg.law, lambda law: editing.set_law(project, axis_name, index, law))
+    return screen, f"law of segment {index + 1}"
+
+
+def speed_dialog(project: Project) -> tuple[ModalScreen, str]:
+    m = project.machine
+    form = " (the file gives cycle_time; it is kept in that form)" if m.speed is None else ""
+
+    def attempt(text, _choice):
+        return editing.set_speed(project, parse_number(text, "speed", positive=True,
+                                                       units=("cycles/min", "cpm", "/min")))
+
+    def explain(p: Project) -> str:
+        return f"{number(p.speed, 'cycles/min')} = {number(60_000.0 / p.speed, 'ms')} per cycle"
+
+    screen = EditDialog("Machine speed", f"speed [cycles/min]{form}:", f"{project.speed:g}",
+                        attempt, explain)
+    return screen, "machine speed"
+
+
+def limits_dialog(project: Project, axis_name: str) -> tuple[ModalScreen, str]:
+    axis = project.axis(axis_name)
+    screen = LimitsDialog(axis_name, axis.unit, axis.limits,
+                          lambda limits: editing.set_limits(project, axis_name, limits))
+    return screen, f"limits of axis {axis_name}"
+
+
+def add_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen, str]:
+    axis = project.axis(axis_name)
+    position = segment_ends(axis)[index][1]
+    donor = editing.default_donor(axis, index)
+    donor = index if donor is None else donor
+
+    def attempt(law, span, to, donor_index):
+        return editing.insert_segment(project, axis_name, index, law, span, to, donor_index)
+
+    screen = AddSegmentDialog(
+        f"New segment after segment {index + 1}, axis {axis_name}", axis.unit, position,
+        _choices(project, axis_name, None), donor, attempt,
+        lambda p: describe(project, p, axis_name),
+    )
+    return screen, f"new segment after {index + 1}"

@@ -1,0 +1,1 @@
+"""Panels and small widgets of the workbench screens."""

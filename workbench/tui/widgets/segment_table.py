@@ -1,0 +1,71 @@
+"""The segments of one axis as a table whose cells are edited in place."""
+
+from __future__ import annotations
+
+from rich.text import Text
+from textual.widgets import DataTable
+
+from motionlaws import Axis
+
+from ...editing import segment_ends
+from ..format import number
+
+COLUMNS = (  # (key, header) — the key says which edit a cell opens
+    ("number", "#"),
+    ("law", "law"),
+    ("span", "span [deg]"),
+    ("ends", "from → to"),
+    ("time", "time [ms]"),
+)
+
+
+def arrow(start: float, end: float) -> str:
+    """↑ rise, ↓ return, · hold."""
+    return "↑" if end > start else ("↓" if end < start else "·")
+
+
+class SegmentTable(DataTable):
+    """Rows are segments; columns law, span, from → to, time at machine speed."""
+
+    DEFAULT_CSS = """
+    SegmentTable { height: auto; max-height: 9; }
+    """
+
+    def __init__(self, **kwargs):
+        super().__init__(cursor_type="cell", zebra_stripes=True, **kwargs)
+        self.axis: Axis | None = None
+
+    def on_mount(self) -> None:
+        for key, label in COLUMNS:
+            self.add_column(Text(label), key=key)
+
+    def show(self, axis: Axis, speed_cpm: float) -> None:
+        """Fill the table, keeping the cursor where it was."""
+        row, column = self.cursor_coordinate
+        self.axis = axis
+        self.clear()
+        cycle_ms = 60_000.0 / speed_cpm
+        for i, (seg, (start, end)) in enumerate(zip(axis.segments, segment_ends(axis)), start=1):
+            if seg.law == "dwell":
+                ends = Text(f"holds {number(start, axis.unit)}", style="dim")
+            else:
+                ends = Text(f"{arrow(start, end)} {start:g} → {end:g} {axis.unit}")
+            self.add_row(
+                Text(str(i), justify="right"),
+                seg.law,
+                Text(f"{seg.span:g}", justify="right"),
+                ends,
+                Text(f"{seg.span / 360.0 * cycle_ms:.1f}", justify="right"),
+                key=str(i),
+            )
+        if self.row_count:
+            self.move_cursor(row=min(row, self.row_count - 1), column=column, animate=False)
+
+    @property
+    def segment_index(self) -> int:
+        """0-based index of the segment under the cursor."""
+        return self.cursor_coordinate.row
+
+    @property
+    def column_key(self) -> str:
+        return COLUMNS[self.cursor_coordinate.column][0]
