@@ -7,7 +7,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .errors import CamGeometryError
-from .extremes import TWO_PI, Extreme, Interval, refine_max, regions_where
+from .extremes import TWO_PI, Extreme, Interval, refine_maxima, regions_where
 from .followers import RollerFollower
 from .geometry import Cam, CamPoints, cam_points
 
@@ -127,8 +127,7 @@ def _velocity_jumps(cam: Cam, breakpoints, scale: float) -> tuple[float, ...]:
     if not breakpoints:
         return ()
     b = np.asarray(breakpoints, dtype=float)
-    left = cam.motion(b - JUMP_PROBE)[1]
-    right = cam.motion(b + JUMP_PROBE)[1]
+    left, right = cam.motion(np.concatenate((b - JUMP_PROBE, b + JUMP_PROBE)))[1].reshape(2, -1)
     return tuple(float(x) for x in b[np.abs(right - left) > JUMP_TOLERANCE * max(scale, 1e-300)])
 
 
@@ -142,50 +141,58 @@ def analyse(cam: Cam, points: int = DEFAULT_POINTS) -> CamAnalysis:
     if int(points) != points or points < MIN_POINTS:
         raise CamGeometryError(f"points must be a whole number of at least {MIN_POINTS}", key="points")
     theta = TWO_PI * np.arange(int(points)) / points
-    pts = cam_points(cam, theta)
-    _check_layout(cam, pts, cam_points(cam, [TWO_PI]))
+    both = cam_points(cam, np.append(theta, TWO_PI))
+    pts = both.take(slice(0, -1))
+    _check_layout(cam, pts, both.take(slice(-1, None)))
     bps = cam.motion.breakpoints
     corners = _velocity_jumps(cam, bps, float(np.max(np.abs(pts.s1))))
 
-    def field(name, transform=lambda v: v):
-        return lambda th: transform(getattr(cam_points(cam, th), name))
-
-    max_phi = refine_max(field("pressure_angle", np.abs), theta, np.abs(pts.pressure_angle), bps)
+    def evaluate(th):
+        return cam_points(cam, th)
 
     undercut: tuple[Interval, ...] = ()
     cusp: tuple[Interval, ...] = ()
     face = None
     pitch_radii = None
+    pitch_radius = None
+    phi = np.abs(pts.pressure_angle)
     if isinstance(cam.follower, RollerFollower):
         r = cam.follower.roller_radius
         kappa = pts.pitch_curvature
-        convex = refine_max(field("pitch_curvature"), theta, kappa, bps)
-        concave = None
-        if kappa.min() < 0:
-            hollow = refine_max(field("pitch_curvature", np.negative), theta, -kappa, bps)
-            concave = Extreme(1.0 / hollow.value, hollow.at)
+        hollow_anywhere = kappa.min() < 0
+        getters = [lambda p: np.abs(p.pressure_angle), lambda p: p.pitch_curvature]
+        values = [phi, kappa]
+        if hollow_anywhere:
+            getters.append(lambda p: -p.pitch_curvature)
+            values.append(-kappa)
+        found = refine_maxima(evaluate, getters, theta, values, bps)
+        max_phi, convex = found[0], found[1]
+        concave = Extreme(1.0 / found[2].value, found[2].at) if hollow_anywhere else None
         pitch_radii = CurveRadii(Extreme(1.0 / convex.value, convex.at), concave)
         profile_radii = CurveRadii(
             Extreme(1.0 / convex.value - r, convex.at),
             None if concave is None else Extreme(concave.value + r, concave.at),
         )
         if r > 0:
-            undercut = regions_where(field("pitch_curvature", lambda k: r * k - 1.0), theta, r * kappa - 1.0)
+            undercut = regions_where(evaluate, lambda p: r * p.pitch_curvature - 1.0, theta, r * kappa - 1.0)
             if not undercut and r * convex.value >= 1.0:  # a sliver between two samples
                 undercut = (Interval(convex.at, convex.at),)
         with np.errstate(divide="ignore"):
             pitch_radius = 1.0 / kappa
     else:
-        rho = pts.profile_radius
-        low = refine_max(field("profile_radius", np.negative), theta, -rho, bps)
+        rho, where = pts.profile_radius, pts.face_position
+        getters = [
+            lambda p: np.abs(p.pressure_angle),
+            lambda p: -p.profile_radius,
+            lambda p: -p.face_position,
+            lambda p: p.face_position,
+        ]
+        max_phi, low, face_lo, face_hi = refine_maxima(evaluate, getters, theta, [phi, -rho, -where, where], bps)
         profile_radii = CurveRadii(Extreme(-low.value, low.at), None)
-        cusp = regions_where(field("profile_radius", np.negative), theta, -rho)
+        cusp = regions_where(evaluate, lambda p: -p.profile_radius, theta, -rho)
         if not cusp and low.value >= 0.0:
             cusp = (Interval(low.at, low.at),)
-        lo = refine_max(field("face_position", np.negative), theta, -pts.face_position, bps)
-        hi = refine_max(field("face_position"), theta, pts.face_position, bps)
-        face = FaceUse(Extreme(-lo.value, lo.at), hi)
-        pitch_radius = None
+        face = FaceUse(Extreme(-face_lo.value, face_lo.at), face_hi)
 
     return CamAnalysis(
         cam=cam,

@@ -25,7 +25,7 @@ for a translating roller follower is the textbook sign,
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, fields
 
 import numpy as np
 
@@ -72,6 +72,10 @@ class CamPoints:
     face_position: np.ndarray | None = None
     face_distance: np.ndarray | None = None  # m, cam centre to the face line (flat faces)
     face_turn_rate: np.ndarray | None = None  # dαc/dθ of a flat face (never zero on a valid cam)
+
+    def take(self, index) -> "CamPoints":
+        """The same quantities at `theta[index]` (a slice or index array)."""
+        return CamPoints(**{f.name: None if (v := getattr(self, f.name)) is None else v[index] for f in fields(self)})
 
 
 def _pressure_angle(w, n, sigma):
