@@ -184,3 +184,17 @@ def test_too_few_points_is_refused():
     with pytest.raises(CamGeometryError) as err:
         analyse(Cam(LIFT, TranslatingFlat(40 * MM)), points=10)
     assert err.value.key == "points"
+
+
+def test_cam_geometry_loads_no_ui_and_no_workbench():
+    # DESIGN §2: solver imports numpy, scipy and motionlaws only.
+    import subprocess
+    import sys
+
+    code = (
+        "import sys, solver.cam; "
+        "bad = [m for m in sys.modules if m.split('.')[0] in ('textual', 'rich', 'workbench', 'ezdxf')]; "
+        "print(','.join(bad))"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == ""
