@@ -10,6 +10,8 @@ from functools import partial
 
 from textual.command import DiscoveryHit, Hit, Hits, Provider
 
+from .screens.help import live_bindings
+
 
 class WorkbenchCommands(Provider):
     """Searches `app.command_entries()`: (name, help, callback)."""
@@ -29,7 +31,7 @@ class WorkbenchCommands(Provider):
 def binding_entries(app, title: str, node, switch=None):
     """(name, help, callback) for every described binding of `node`; `switch` runs first."""
     seen = set()
-    for _, binding in node._bindings:
+    for _, binding in live_bindings(app, node):
         if not binding.description or binding.system or binding.action in seen:
             continue
         seen.add(binding.action)

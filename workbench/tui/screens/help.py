@@ -19,6 +19,14 @@ from textual.widgets import Label, Static
 Row = tuple[str, str, str]  # key(s), what it does, longer explanation
 
 
+def live_bindings(app, node):
+    """The bindings of `node` as they are in force: its own, with the app's keymap applied."""
+    bindings = node._bindings.copy()
+    if app._keymap:
+        bindings.apply_keymap(app._keymap)
+    return bindings
+
+
 def rows_of(app, bindings: Iterable[tuple[str, Binding]]) -> list[Row]:
     """One row per action that has a description; keys of the same action are joined."""
     by_action: dict[str, list] = {}
@@ -34,9 +42,9 @@ def rows_of(app, bindings: Iterable[tuple[str, Binding]]) -> list[Row]:
 
 def binding_sections(app, nodes: list[tuple[str, object]]) -> list[tuple[str, list[Row]]]:
     """Sections (title, rows) for the app and the given (title, widget) pairs."""
-    sections = [("Everywhere", rows_of(app, app._bindings))]
+    sections = [("Everywhere", rows_of(app, live_bindings(app, app)))]
     for title, node in nodes:
-        rows = rows_of(app, node._bindings)
+        rows = rows_of(app, live_bindings(app, node))
         if rows:
             sections.append((title, rows))
     return sections

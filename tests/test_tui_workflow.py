@@ -1,0 +1,355 @@
+"""The workbench as a user drives it: open, edit, refuse, undo, save, reopen, quit.
+
+Each test drives the app with key presses (Textual's pilot) and asserts on
+the model first, then on what the widgets show.  Expected peaks follow
+DESIGN §3: a cycloidal rise of lift h over T seconds peaks at v = 2h/T and
+j = 4π²·h/T³ (Cv = 2, Cj = 4π², handbook values from memory, Norton,
+*Cam Design and Manufacturing Handbook*); T = (β/360)(60/N).
+"""
+
+from __future__ import annotations
+
+import math
+import shutil
+
+import pytest
+from textual.widgets import DataTable, Input
+
+from workbench.app import Workbench
+from workbench.editing import law_ids
+from workbench.presets import preset_path
+from workbench.projectfile import dumps, load_project
+from workbench.tui.screens.confirm import ChoiceDialog
+from workbench.tui.screens.edit_value import EditDialog
+from workbench.tui.screens.help import HelpScreen
+from workbench.tui.screens.law_picker import LawPicker
+from workbench.tui.widgets.peaks_panel import PeaksPanel
+from workbench.tui.widgets.segment_table import SegmentTable
+
+LID = "lid-lift"
+SIZE = (100, 30)
+
+
+def cycloidal_peaks(lift_mm: float, span_deg: float, speed_cpm: float) -> tuple[float, float]:
+    """(v, j) peaks of a cycloidal rise: 2h/T and 4π²h/T³ (handbook Cv, Cj)."""
+    t = span_deg / 360.0 * 60.0 / speed_cpm
+    return 2.0 * lift_mm / t, 4.0 * math.pi**2 * lift_mm / t**3
+
+
+@pytest.fixture
+def project_file(tmp_path):
+    path = tmp_path / "lidder.toml"
+    shutil.copy(preset_path("tray-lidder"), path)
+    return path
+
+
+async def settle(pilot) -> None:
+    """Let edits reach the worker and its results reach the widgets."""
+    await pilot.pause()
+    await pilot.app.workers.wait_for_complete()
+    await pilot.pause()
+
+
+async def open_span_dialog(pilot) -> EditDialog:
+    table = pilot.app.query_one(SegmentTable)
+    table.move_cursor(row=0, column=2)  # segment 1, span
+    await pilot.press("enter")
+    await pilot.pause()
+    assert isinstance(pilot.app.screen, EditDialog)
+    return pilot.app.screen
+
+
+async def type_value(pilot, text: str) -> None:
+    field = pilot.app.screen.query_one("#value", Input)
+    field.value = ""
+    await pilot.press(*list(text))
+    await pilot.pause()
+
+
+def peaks(app) -> dict:
+    return app.query_one(PeaksPanel).rows
+
+
+async def test_edit_span_in_place_changes_peaks(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        v, j = cycloidal_peaks(40.0, 90.0, 120.0)
+        assert peaks(app)["velocity"]["value"] == f"{v:.0f} mm/s"  # 640 mm/s
+        assert peaks(app)["jerk"]["verdict"] == "✗ OVER"
+        dialog = await open_span_dialog(pilot)
+        await type_value(pilot, "120")
+        assert dialog.error is None
+        await pilot.press("enter")
+        await settle(pilot)
+        # model: segment 1 now 120°, the 30° came from the dwell after it
+        assert [s.span for s in app.project.axis(LID).segments] == [120.0, 120.0, 120.0]
+        assert app.history.modified
+        # widgets: table cell, peaks, verdict
+        table = app.query_one(SegmentTable)
+        assert str(table.get_cell_at((0, 2))) == "120"
+        v, j = cycloidal_peaks(40.0, 120.0, 120.0)
+        assert peaks(app)["velocity"]["value"] == f"{v:.0f} mm/s"  # 480 mm/s
+        # The axis jerk is now the modified-sine return's: Cj = 16π³/(4+π) (DESIGN §3, derived),
+        # above the rise's 341,094 mm/s³ and below the 700,000 mm/s³ limit.
+        t_return = 120.0 / 360.0 * 60.0 / 120.0
+        j_return = 16 * math.pi**3 / (4 + math.pi) * 40.0 / t_return**3
+        assert j < j_return
+        assert peaks(app)["jerk"]["value"] == f"{j_return:,.0f} mm/s³"
+        assert peaks(app)["jerk"]["verdict"] == "✓ within"
+        assert "span of segment 1" in app.status_text
+
+
+@pytest.mark.parametrize("typed, reason", [
+    ("abc", "'abc' is not a number"),
+    ("-5", "must be above 0"),
+    ("250", "cannot give"),  # the dwell has only 150° to give
+])
+async def test_bad_span_refused_where_typed(project_file, typed, reason):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        before = dumps(app.project)
+        dialog = await open_span_dialog(pilot)
+        await type_value(pilot, typed)
+        assert reason in dialog.error
+        assert reason in str(dialog.query_one("#feedback").content)
+        await pilot.press("enter")  # refused: the dialog stays open
+        await pilot.pause()
+        assert app.screen is dialog
+        await pilot.press("escape")
+        await settle(pilot)
+        assert dumps(app.project) == before
+        assert not app.history.modified and not app.history.can_undo
+
+
+async def test_law_list_shows_coefficients_and_refuses_what_breaks_the_axis(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        app.query_one(SegmentTable).move_cursor(row=2, column=1)  # the return
+        await pilot.press("l")
+        await pilot.pause()
+        picker = app.screen
+        assert isinstance(picker, LawPicker)
+        table = picker.query_one("#laws", DataTable)
+        assert [str(k.value) for k in table.rows] == law_ids()
+        cyc = table.get_row("cycloidal")
+        assert [str(c) for c in cyc[1:3]] == ["2.000", "6.283"]  # Cv = 2, Ca = 2π (handbook)
+        table.move_cursor(row=law_ids().index("dwell"))
+        await pilot.press("enter")
+        await pilot.pause()
+        assert app.screen is picker and "not at its start" in picker.error
+        table.move_cursor(row=law_ids().index("poly345"))
+        await pilot.press("enter")
+        await settle(pilot)
+        assert app.project.axis(LID).segments[2].law == "poly345"
+        assert str(app.query_one(SegmentTable).get_cell_at((2, 1))) == "poly345"
+
+
+async def test_undo_redo_every_edit(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        original = app.project
+        app.query_one(SegmentTable).move_cursor(row=0, column=0)
+        await pilot.press("s")  # split segment 1
+        await settle(pilot)
+        assert len(app.project.axis(LID).segments) == 4
+        await pilot.press("d")  # delete the first half again
+        await settle(pilot)
+        assert len(app.project.axis(LID).segments) == 3
+        await pilot.press("ctrl+z")
+        await settle(pilot)
+        assert len(app.project.axis(LID).segments) == 4
+        await pilot.press("ctrl+z")
+        await settle(pilot)
+        assert app.project is original and not app.history.modified
+        assert peaks(app)["velocity"]["value"] == "640 mm/s"
+        await pilot.press("ctrl+y")
+        await settle(pilot)
+        assert [s.span for s in app.project.axis(LID).segments][:2] == [45.0, 45.0]
+        assert app.query_one(SegmentTable).row_count == 4
+        assert "redid: split segment 1" in app.status_text
+
+
+async def test_reorder_add_speed_and_limits(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        table = app.query_one(SegmentTable)
+        table.move_cursor(row=0, column=0)
+        await pilot.press("right_square_bracket")  # rise one place later: dwell first
+        await settle(pilot)
+        assert [s.law for s in app.project.axis(LID).segments] == ["dwell", "cycloidal", "modified-sine"]
+        assert table.cursor_coordinate.row == 1  # the cursor follows the segment
+        await pilot.press("right_square_bracket")  # return before rise: refused
+        await settle(pilot)
+        assert [s.law for s in app.project.axis(LID).segments][1] == "cycloidal"
+        assert app.status_text.startswith("✗ refused") and "not at its start" in app.status_text
+        await pilot.press("a")  # add: the dialog proposes a 30° dwell taken from a dwell
+        await pilot.pause()
+        await pilot.press("enter")  # focus is on the law list: enter opens it
+        await pilot.press("escape")
+        app.screen.query_one("#span", Input).focus()
+        await pilot.press("enter")
+        await settle(pilot)
+        assert len(app.project.axis(LID).segments) == 4
+        assert math.isclose(sum(s.span for s in app.project.axis(LID).segments), 360.0)
+        await pilot.press("m")
+        await pilot.pause()
+        await type_value(pilot, "100")
+        await pilot.press("enter")
+        await settle(pilot)
+        assert app.project.speed == 100.0
+        await pilot.press("L")
+        await pilot.pause()
+        app.screen.query_one("#jerk", Input).value = ""
+        await pilot.pause()
+        await pilot.press("enter")
+        await settle(pilot)
+        assert app.project.axis(LID).limits.jerk is None
+        assert peaks(app)["jerk"]["verdict"] == "· no limit"
+
+
+async def test_save_reopen_and_compare_file(project_file, tmp_path):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await open_span_dialog(pilot)
+        await type_value(pilot, "100")
+        await pilot.press("enter")
+        await settle(pilot)
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+        assert not app.history.modified
+        saved = project_file.read_text()
+        assert saved == dumps(app.project)
+        assert [s.span for s in load_project(project_file).axis(LID).segments] == [100.0, 140.0, 120.0]
+        # save as, then reopen the first file from disk
+        other = tmp_path / "copy.toml"
+        await pilot.press("f2")
+        await pilot.pause()
+        app.screen.query_one("#path", Input).value = str(other)
+        await pilot.press("enter")
+        await settle(pilot)
+        assert other.read_text() == saved and app.project.path == other
+        await pilot.press("ctrl+o")
+        await pilot.pause()
+        app.screen.query_one("#path", Input).value = str(project_file)
+        await pilot.press("enter")
+        await settle(pilot)
+        assert app.project.path == project_file
+        assert dumps(app.project) == saved
+        assert not app.history.can_undo
+
+
+async def test_open_refuses_an_invalid_file(project_file, tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text(project_file.read_text().replace("span = 150.0", "span = 15.0"))
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("ctrl+o")
+        await pilot.pause()
+        dialog = app.screen
+        dialog.query_one("#path", Input).value = str(bad)
+        await pilot.press("enter")
+        await pilot.pause()
+        assert app.screen is dialog and "spans sum to 225" in dialog.error
+        await pilot.press("escape")
+        assert app.project.path == project_file
+
+
+async def test_quit_guard(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("s")
+        await settle(pilot)
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+        assert isinstance(app.screen, ChoiceDialog)
+        await pilot.press("escape")
+        await pilot.pause()
+        assert app.is_running and not isinstance(app.screen, ChoiceDialog)
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+        await pilot.press("s")  # save, then quit
+        await pilot.pause()
+    assert len(load_project(project_file).axis(LID).segments) == 4
+    assert app.return_code == 0
+
+
+async def test_quit_without_changes_does_not_ask(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+        assert not app.is_running
+
+
+async def test_help_is_built_from_live_bindings(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        app.set_keymap({"save": "ctrl+w"})
+        await pilot.press("f1")
+        await pilot.pause()
+        assert isinstance(app.screen, HelpScreen)
+        rows = {title: {d: k for k, d, _ in r} for title, r in app.screen.sections}
+        assert rows["Everywhere"]["Save"] == "^w"  # the remapped key, not a written-down one
+        assert "Split" in rows["Axes view"] and "Limits" in rows["Axes view"]
+        assert "+5°" in rows["Timing view"]
+        await pilot.press("escape")
+
+
+async def test_palette_reaches_every_bound_action(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        names = {name for name, _, _ in app.command_entries()}
+        for _, binding in app._bindings:
+            if binding.description and not binding.system:
+                assert binding.description in names
+        for view in app.views:
+            for _, binding in view._bindings:
+                if binding.description:
+                    assert f"{view.title}: {binding.description}" in names
+        assert "Axis: seal-head" in names
+        await pilot.press("ctrl+p")
+        await pilot.pause()
+        await pilot.press(*"Axes: Split")
+        await pilot.pause(0.3)
+        await pilot.press("enter")
+        await settle(pilot)
+        assert len(app.project.axis(LID).segments) == 4
+
+
+async def test_axis_switch_and_timing_view(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("full_stop")
+        await settle(pilot)
+        axes = app.query_one("#axes")
+        assert axes.axis_name == "tray-pusher"
+        assert app.query_one(SegmentTable).row_count == 4
+        await pilot.press("2")
+        await pilot.pause()
+        for _ in range(3):
+            await pilot.press("right")
+        await pilot.pause()
+        timing = app.query_one("#timing")
+        assert timing.angle == 15.0
+        # the readout shows the lid-lift position at 15°: cycloidal y = x − sin(2πx)/2π, x = 15/90
+        x = 15.0 / 90.0
+        s = 40.0 * (x - math.sin(2 * math.pi * x) / (2 * math.pi))
+        readout = app.query_one("#timing-readout")
+        text = "".join(str(c) for c in readout.content.columns[2].cells)
+        assert f"{s:.4g} mm" in text
+        await pilot.press("3")
+        await pilot.pause()
+        message = str(app.query_one("#linkage").query_one("#pending-text").content)
+        assert "not yet available" in message and "[[linkage]]" in message
