@@ -30,7 +30,7 @@ from solver.kinematics import (
     SliderStroke,
     System,
 )
-from tests.test_kinematics_fd import derivative
+from tests.test_kinematics_support import derivative
 
 RNG_SEED = 20240611
 

@@ -23,8 +23,9 @@ A kind must give (numbered as the solver uses them):
 6. ``eta(par, poses, rates, accels)`` — η: minus the part of d³Φ/dθ³ that
    does not contain q''' (so that Φq q''' = η).
 
-`par` maps each parameter name of the binding to its stack over instances
-(shape (k, ...)); `poses` holds one `Pose` per slot, `rates` and `accels` one
+`par` maps each parameter name of the binding to its stack over instances,
+component first and ready to broadcast: shape (d, k, 1) for a parameter of
+d numbers, so ``sx, sy = par["s"]`` gives two (k, 1) columns; `poses` holds one `Pose` per slot, `rates` and `accels` one
 `Rates` per slot (first and second derivatives w.r.t. master angle).  Time
 never appears: a driver's time dependence is added by the solver from its
 motion.  Adding a kind means writing one such subclass; nothing else changes.

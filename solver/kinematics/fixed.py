@@ -34,7 +34,7 @@ class Fixed(Constraint):
 
     @classmethod
     def residual(cls, par, pi, pj):
-        return Revolute.residual(par, pi, pj) + [pj.phi - pi.phi - par["angle"]]
+        return Revolute.residual(par, pi, pj) + [pj.phi - pi.phi - par["angle"][0]]
 
     @classmethod
     def jacobian(cls, par, pi, pj):

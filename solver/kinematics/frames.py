@@ -16,35 +16,41 @@ perp(a) = B s' = dA/dφ s', which is all the derivative algebra needs:
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 
 
-@dataclass(frozen=True)
 class Pose:
-    """Poses of k bodies at N instants: x, y (m), φ (rad), and cos φ, sin φ."""
+    """Poses of k bodies at N instants: x, y (m), φ (rad), and cos φ, sin φ.
 
-    x: np.ndarray
-    y: np.ndarray
-    phi: np.ndarray
-    c: np.ndarray
-    s: np.ndarray
+    `rotate` remembers what it computed, so a kind that rotates the same
+    local vector in its residual and its Jacobian pays once per evaluation.
+    """
+
+    __slots__ = ("x", "y", "phi", "c", "s", "_rotated")
+
+    def __init__(self, x, y, phi, c, s):
+        self.x, self.y, self.phi, self.c, self.s = x, y, phi, c, s
+        self._rotated = {}
 
     def rotate(self, local: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """a = A(φ) s' for body-local vectors `local` shaped (k, 2) (m)."""
-        lx = local[:, 0:1]
-        ly = local[:, 1:2]
-        return self.c * lx - self.s * ly, self.s * lx + self.c * ly
+        """a = A(φ) s' for body-local vectors `local` shaped (2, k, 1) (m): components (a_x, a_y)."""
+        key = id(local)
+        hit = self._rotated.get(key)
+        if hit is not None and hit[0] is local:
+            return hit[1]
+        lx, ly = local
+        out = (self.c * lx - self.s * ly, self.s * lx + self.c * ly)
+        self._rotated[key] = (local, out)
+        return out
 
 
-@dataclass(frozen=True)
 class Rates:
     """A derivative of the poses w.r.t. master angle: x, y (m/rad^k), φ (rad/rad^k)."""
 
-    x: np.ndarray
-    y: np.ndarray
-    phi: np.ndarray
+    __slots__ = ("x", "y", "phi")
+
+    def __init__(self, x, y, phi):
+        self.x, self.y, self.phi = x, y, phi
 
 
 def perp(ax: np.ndarray, ay: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -60,5 +60,5 @@ def evaluate_motion(motion, theta: np.ndarray) -> np.ndarray:
     out = np.empty((4, theta.size))
     values = motion(theta)
     for k in range(4):
-        out[k] = np.broadcast_to(np.asarray(values[k], dtype=float), theta.shape)
+        out[k] = values[k]
     return out

@@ -49,7 +49,7 @@ class Prismatic(Constraint):
     def residual(cls, par, pi, pj):
         return [
             projection.value(pi, pj, par["si"], par["sj"], par["n"]),
-            pj.phi - pi.phi - par["angle"],
+            pj.phi - pi.phi - par["angle"][0],
         ]
 
     @classmethod

@@ -22,6 +22,7 @@ import numpy as np
 from .base import LENGTH
 from .errors import ModelError
 from .frames import Pose, Rates
+from .linalg import PLAN_SAMPLES, PLAN_SEED, EliminationPlan
 from .model import GROUND, Mechanism
 from .motion import evaluate_motion
 
@@ -41,8 +42,13 @@ class Group:
     variable: list[tuple[int, int]] = field(default_factory=list)  # (row, col) entries that vary
 
 
-def _stack(bindings, key: str) -> np.ndarray:
-    return np.stack([np.atleast_1d(np.asarray(b.params[key], dtype=float)) for b in bindings])
+def stack_params(bindings) -> dict[str, np.ndarray]:
+    """Parameters of several bindings of one kind, component first: (d, k, 1) each."""
+    out = {}
+    for key in bindings[0].params:
+        rows = np.stack([np.atleast_1d(np.asarray(b.params[key], dtype=float)) for b in bindings])
+        out[key] = np.ascontiguousarray(rows.T[:, :, None])
+    return out
 
 
 class System:
@@ -81,6 +87,7 @@ class System:
         self._template = np.zeros((self.m, self.n + SLOT_COLUMNS))
         for g in self.groups:
             self._fill_constants(g)
+        self._plan = None
 
     # -- compile ---------------------------------------------------------------
     def _group(self, kind, items, index) -> Group:
@@ -88,7 +95,7 @@ class System:
         slots = np.array([[index[name] for name in b.bodies] for b in bindings]).T
         rows = np.array([r for _, _, _, r in items]).T
         cols = np.concatenate([SLOT_COLUMNS * slots[t][None] + np.arange(SLOT_COLUMNS)[:, None] for t in range(len(slots))])
-        par = {key: _stack(bindings, key) for key in bindings[0].params}
+        par = stack_params(bindings)
         return Group(kind, [n for n, _, _, _ in items], par, slots, rows, cols)
 
     def _fill_constants(self, g: Group) -> None:
@@ -107,27 +114,36 @@ class System:
         assert k == len(g.names)
 
     # -- poses ---------------------------------------------------------------
-    def _padded(self, q: np.ndarray) -> np.ndarray:
-        out = np.zeros((self.n + SLOT_COLUMNS, q.shape[1]))
-        out[: self.n] = q
+    def _poses(self, q: np.ndarray) -> np.ndarray:
+        """(5, B+1, N): x, y, φ, cos φ, sin φ of every body; the ground (last) at rest at the origin."""
+        N = q.shape[1]
+        out = np.empty((5, self.B + 1, N))
+        out[:3, : self.B] = q.reshape(self.B, 3, N).transpose(1, 0, 2)
+        out[:3, self.B] = 0.0
+        np.cos(out[2], out=out[3])
+        np.sin(out[2], out=out[4])
         return out
 
-    def _poses(self, q: np.ndarray):
-        p = self._padded(q)
-        phi = p[2::3]
-        return p[0::3], p[1::3], phi, np.cos(phi), np.sin(phi)
-
-    def _rates(self, dq: np.ndarray):
-        p = self._padded(dq)
-        return p[0::3], p[1::3], p[2::3]
+    def _rates(self, dq: np.ndarray) -> np.ndarray:
+        """(3, B+1, N): a derivative of x, y, φ of every body; zero for the ground."""
+        N = dq.shape[1]
+        out = np.empty((3, self.B + 1, N))
+        out[:, : self.B] = dq.reshape(self.B, 3, N).transpose(1, 0, 2)
+        out[:, self.B] = 0.0
+        return out
 
     @staticmethod
     def _slot_poses(g: Group, arrays) -> list[Pose]:
-        return [Pose(*(a[idx] for a in arrays)) for idx in g.slots]
+        taken = np.take(arrays, g.slots, axis=1)  # (5, slots, k, N), C-contiguous
+        return [Pose(*taken[:, t]) for t in range(taken.shape[1])]
 
     @staticmethod
     def _slot_rates(g: Group, arrays) -> list[Rates]:
-        return [Rates(*(a[idx] for a in arrays)) for idx in g.slots]
+        taken = np.take(arrays, g.slots, axis=1)
+        return [Rates(*taken[:, t]) for t in range(taken.shape[1])]
+
+    def stack_params(self, bindings):
+        return stack_params(bindings)
 
     # -- evaluation ----------------------------------------------------------
     def drive(self, theta: np.ndarray) -> np.ndarray:
@@ -210,6 +226,19 @@ class System:
     def scaled_jacobian(self, jac: np.ndarray) -> np.ndarray:
         """Φq with rows and columns scaled to be dimensionless (m, n, N)."""
         return jac * self.row_scale[:, None, None] * self.col_scale[None, :, None]
+
+    def elimination_plan(self):
+        """The planned elimination for batched solves (learned once from random configurations)."""
+        if self._plan is None:
+            rng = np.random.default_rng(PLAN_SEED)
+            q = np.empty((self.n, PLAN_SAMPLES))
+            q[0::3] = rng.uniform(-1.0, 1.0, (self.B, PLAN_SAMPLES)) * self.length
+            q[1::3] = rng.uniform(-1.0, 1.0, (self.B, PLAN_SAMPLES)) * self.length
+            q[2::3] = rng.uniform(-np.pi, np.pi, (self.B, PLAN_SAMPLES))
+            samples = self.scaled_jacobian(self.jacobian(q))
+            xy = np.array([c for c in range(self.n) if c % 3 < 2], dtype=int)
+            self._plan = EliminationPlan(samples, xy) if self.m == self.n else None
+        return self._plan
 
     def initial_guess(self) -> np.ndarray:
         """The rough initial coordinates of the moving bodies, (n,)."""

@@ -1,0 +1,198 @@
+"""Solve a mechanism over a machine cycle: positions, velocities, accelerations, jerks.
+
+The work is split so that Python loops only where the mathematics is
+sequential (DESIGN §4):
+
+1. Assemble at the first instant from the rough coordinates and check the
+   degrees of freedom (dof.py).
+2. March along the master angle with predictor and Newton (march.py),
+   taking steps up to COARSE_STEP long, shorter where the branch checks ask
+   for it.  This is the sequential part; it follows the branch the designer
+   drew and stops at dead points.
+3. Interpolate the marched states to every requested instant (quintic
+   Hermite, hermite.py) and run Newton on all of them at once with the
+   batched factorization (linalg.py); then q', q'', q''' are three batched
+   solves with the same factors.
+4. Check every instant as the march checks its steps (convergence,
+   conditioning, det sign, branch consistency between neighbours) and
+   re-march, instant by instant, any stretch that fails; a failure there is
+   a dead point like any other.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from .dof import analyse_dof, describe_motion
+from .hermite import interpolate
+from .linalg import DenseFactor
+from .march import (
+    BRANCH_TOLERANCE,
+    COARSE_STEP,
+    DEAD_POINT_CONDITION,
+    State,
+    Stop,
+    branch_defect,
+    march,
+    solve_instant,
+)
+from .newton import assemble, derivatives, newton
+from .result import DEAD_POINT, NOT_ASSEMBLED, NOT_DRIVEN, SOLVED, CycleResult, DeadPoint
+from .system import System
+
+INSTANTS = 3600  # default instants per cycle: 0.1° of master angle
+SCREEN_CONDITION = DEAD_POINT_CONDITION * 1e-3  # pivot estimate above this sends an instant to the exact check
+
+
+def solve_cycle(mechanism, speed: float, instants: int = INSTANTS, theta=None) -> CycleResult:
+    """Solve `mechanism` at `instants` equally spaced master angles over one cycle (or at `theta`, rad, increasing).
+
+    `speed` is the machine speed in cycles/min; it only scales the time
+    derivatives the result reports.
+    """
+    system = System(mechanism)
+    if theta is None:
+        theta = 2.0 * math.pi * np.arange(instants) / instants
+    theta = np.asarray(theta, dtype=float)
+    if theta.ndim != 1 or theta.size == 0 or np.any(np.diff(theta) <= 0.0) or not np.all(np.isfinite(theta)):
+        raise ValueError("theta must be a non-empty, strictly increasing array of finite master angles (rad)")
+    return CycleSolver(system).solve(theta, float(speed))
+
+
+class CycleSolver:
+    """Runs the four stages of the module docstring for one compiled `System`."""
+
+    def __init__(self, system: System):
+        self.system = system
+
+    def _result(self, status, message, theta, arrays, speed, requested, dof, dead=None) -> CycleResult:
+        n = self.system.n
+        empty = np.empty((0, n))
+        q, dq, ddq, dddq = (a.T.copy() for a in arrays) if arrays is not None else (empty,) * 4
+        return CycleResult(
+            status, message, theta, q, dq, ddq, dddq, tuple(self.system.coordinate_names()),
+            speed, requested, dof, dead, self.system,
+        )
+
+    def solve(self, theta: np.ndarray, speed: float) -> CycleResult:
+        system = self.system
+        requested = theta.size
+        q0, assembled = assemble(system, system.initial_guess(), float(theta[0]))
+        dof = analyse_dof(system, q0)
+        if not dof.driven:
+            return self._result(NOT_DRIVEN, dof.message, theta[:0], None, speed, requested, dof)
+        if not assembled:
+            message = (
+                f"the linkage cannot be assembled at master {math.degrees(theta[0]):.4f}° near the rough"
+                " coordinates: check dimensions, points and the drivers' start values"
+            )
+            return self._result(NOT_ASSEMBLED, message, theta[:0], None, speed, requested, dof)
+        start, reason = solve_instant(system, float(theta[0]), q0)
+        if reason:
+            dead = self._dead_point(Stop(reason, start, float(theta[0])))
+            return self._result(DEAD_POINT, dead.message, theta[:0], None, speed, requested, dof, dead)
+
+        nodes, stop = march(system, start, [float(theta[-1])], COARSE_STEP, record=True)
+        nodes = [start] + nodes
+        if stop is not None:
+            nodes.append(stop.state) if stop.state.theta > nodes[-1].theta else None
+        end = nodes[-1].theta
+        count = int(np.searchsorted(theta, end, side="right"))
+        fine = theta[:count]
+        arrays, stop2 = self._fine(fine, nodes, start)
+        if stop2 is not None:
+            stop = stop2
+            count = arrays[0].shape[1]
+        if stop is None:
+            return self._result(SOLVED, "solved", theta, arrays, speed, requested, dof)
+        dead = self._dead_point(stop)
+        return self._result(DEAD_POINT, dead.message, theta[:count], arrays, speed, requested, dof, dead)
+
+    # -- stage 3 and 4 -------------------------------------------------------------
+    def _fine(self, fine: np.ndarray, nodes: list[State], start: State):
+        system = self.system
+        node_theta = np.array([s.theta for s in nodes])
+        Q = np.column_stack([s.q for s in nodes])
+        DQ = np.column_stack([s.dq for s in nodes])
+        DDQ = np.column_stack([s.ddq for s in nodes])
+        if len(nodes) == 1:
+            guess = np.repeat(Q, fine.size, axis=1)
+        else:
+            guess = interpolate(node_theta, Q, DQ, DDQ, fine)
+        drive = system.drive(fine)
+        solved = newton(system, guess, drive, system.elimination_plan())
+        dq, ddq, dddq = derivatives(system, solved, drive)
+        q = solved.q
+        bad = self._bad(fine, q, dq, ddq, solved, start.det_sign)
+        stop = None
+        while bad.size:
+            i = int(bad[0])
+            q, dq, ddq, dddq, stop, fixed_to = self._repair(fine, q, dq, ddq, dddq, i, start)
+            if stop is not None:
+                break
+            later = self._bad(fine, q, dq, ddq, None, start.det_sign)
+            bad = later[later > fixed_to]
+        return (q, dq, ddq, dddq), stop
+
+    def _bad(self, fine, q, dq, ddq, solved, det_sign) -> np.ndarray:
+        """Indices of instants that fail a check, in order."""
+        system = self.system
+        bad = np.zeros(fine.size, dtype=bool)
+        if solved is not None:
+            F = solved.factor
+            bad |= ~solved.converged
+            bad |= F.det_sign != det_sign
+            screen = np.flatnonzero(F.condition > SCREEN_CONDITION)
+            if screen.size:
+                jac = system.jacobian(q[:, screen])
+                exact = DenseFactor(jac, system.row_scale, system.col_scale).condition
+                bad[screen[exact > DEAD_POINT_CONDITION]] = True
+        if fine.size > 1:
+            h = np.diff(fine)
+            defect = branch_defect(system, q[:, :-1], dq[:, :-1], ddq[:, :-1], q[:, 1:], dq[:, 1:], ddq[:, 1:], h)
+            bad[1:] |= ~(defect <= BRANCH_TOLERANCE)
+        return np.flatnonzero(bad)
+
+    def _repair(self, fine, q, dq, ddq, dddq, i, start):
+        """Re-march instants i.. one by one from instant i − 1 until the checks pass again."""
+        system = self.system
+        if i == 0:
+            state = start
+            i = 1
+            if fine.size == 1:
+                return q, dq, ddq, dddq, None, 0
+        else:
+            state = self._state(fine, q, dq, ddq, i - 1)
+        # march instant by instant over the stretch, then hand back to the batch
+        span = max(1, int(round(COARSE_STEP / max(fine[1] - fine[0], 1e-12)))) if fine.size > 1 else 1
+        last = min(fine.size, i + span)
+        states, stop = march(system, state, list(fine[i:last]), max_step=COARSE_STEP)
+        good = i + len(states)
+        for k, s in enumerate(states):
+            q[:, i + k], dq[:, i + k], ddq[:, i + k] = s.q, s.dq, s.ddq
+        if states:
+            idx = np.arange(i, good)
+            drive = system.drive(fine[idx])
+            res, jac = system.residual_jacobian(q[:, idx], drive)
+            F = DenseFactor(jac, system.row_scale, system.col_scale)
+            dddq[:, idx] = F.solve(system.eta(q[:, idx], dq[:, idx], ddq[:, idx], drive))
+        if stop is not None:
+            return q[:, :good], dq[:, :good], ddq[:, :good], dddq[:, :good], stop, good - 1
+        return q, dq, ddq, dddq, None, good - 1
+
+    def _state(self, fine, q, dq, ddq, k) -> State:
+        system = self.system
+        jac = system.jacobian(q[:, k : k + 1])
+        F = DenseFactor(jac, system.row_scale, system.col_scale)
+        return State(float(fine[k]), q[:, k].copy(), dq[:, k].copy(), ddq[:, k].copy(), float(F.det_sign[0]), float(F.condition[0]))
+
+    def _dead_point(self, stop: Stop) -> DeadPoint:
+        """Describe the singular motion at the last solved state of a stop."""
+        system = self.system
+        q = stop.state.q
+        jac = system.scaled_jacobian(system.jacobian(q[:, None]))[:, :, 0]
+        _, _, Vt = np.linalg.svd(jac)
+        motion = describe_motion(system, q, Vt[-1] * system.col_scale)
+        return DeadPoint(stop.reason, float(stop.state.theta), float(stop.failed), motion.joints, motion.bodies, float(stop.state.condition))

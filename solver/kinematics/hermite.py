@@ -1,0 +1,39 @@
+"""Quintic Hermite interpolation of q from values, first and second derivatives at nodes.
+
+Between nodes θ_a, θ_b (h = θ_b − θ_a, t = (θ − θ_a)/h) the quintic matching
+q, q', q'' at both ends is (standard basis, e.g. any numerical-analysis text):
+
+    q(t) = H0 q_a + h H1 q'_a + h² H2 q''_a + H3 q_b + h H4 q'_b + h² H5 q''_b
+    H0 = 1 − 10t³ + 15t⁴ − 6t⁵     H3 = 10t³ − 15t⁴ + 6t⁵
+    H1 = t − 6t³ + 8t⁴ − 3t⁵       H4 = −4t³ + 7t⁴ − 3t⁵
+    H2 = (t² − 3t³ + 3t⁴ − t⁵)/2   H5 = (t³ − 2t⁴ + t⁵)/2
+
+Its error is O(h⁶ q⁽⁶⁾), so from nodes a few degrees apart the guess it
+gives a fine instant is already close to the solution.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+
+def interpolate(nodes: np.ndarray, q: np.ndarray, dq: np.ndarray, ddq: np.ndarray, theta: np.ndarray) -> np.ndarray:
+    """q at master angles `theta` (N,) from nodes (K,) with q, q', q'' each (n, K); returns (n, N).
+
+    `theta` must lie within [nodes[0], nodes[-1]]; nodes increase strictly.
+    """
+    k = np.clip(np.searchsorted(nodes, theta, side="right") - 1, 0, len(nodes) - 2)
+    h = nodes[k + 1] - nodes[k]
+    t = (theta - nodes[k]) / h
+    t2 = t * t
+    t3 = t2 * t
+    t4 = t3 * t
+    t5 = t4 * t
+    H0 = 1.0 - 10.0 * t3 + 15.0 * t4 - 6.0 * t5
+    H1 = (t - 6.0 * t3 + 8.0 * t4 - 3.0 * t5) * h
+    H2 = 0.5 * (t2 - 3.0 * t3 + 3.0 * t4 - t5) * h * h
+    H3 = 1.0 - H0
+    H4 = (-4.0 * t3 + 7.0 * t4 - 3.0 * t5) * h
+    H5 = 0.5 * (t3 - 2.0 * t4 + t5) * h * h
+    a, b = k, k + 1
+    return H0 * q[:, a] + H1 * dq[:, a] + H2 * ddq[:, a] + H3 * q[:, b] + H4 * dq[:, b] + H5 * ddq[:, b]

@@ -1,0 +1,126 @@
+"""Sequential continuation along the master angle: one instant after another.
+
+From a solved instant, the next is predicted by q + q'h + ½q''h² (h the step
+in master angle) and corrected by Newton–Raphson, so the solution follows
+the assembly branch it started on.  A step is accepted only if
+
+1. Newton converged within STEP_ITERATIONS,
+2. the scaled Φq is not near singular (condition ≤ DEAD_POINT_CONDITION),
+3. det Φq kept its sign (a sign change means a singular configuration —
+   a dead point where two branches meet — was passed), and
+4. the step is consistent with one smooth branch: the Euler–Maclaurin
+   identity q_b − q_a = h/2 (q'_a + q'_b) − h²/12 (q''_b − q''_a) + O(h⁵)
+   holds to BRANCH_TOLERANCE of the step (a jump to another branch breaks
+   it by a share of order one).
+
+A rejected step is halved and retried; below MIN_STEP the march stops and
+reports why, with the last solved instant: the dead point lies within
+MIN_STEP after it.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from .newton import STEP_ITERATIONS, derivatives, newton
+
+COARSE_STEP = math.radians(5.0)  # master angle between continuation nodes (DESIGN §4: "a few degrees")
+MIN_STEP = 1e-7  # rad of master angle: dead points are located to this
+DEAD_POINT_CONDITION = 1e8  # 1-norm condition of scaled Φq: beyond it positions keep under half their digits
+BRANCH_TOLERANCE = 1e-2  # on one branch the Euler–Maclaurin defect is O(h⁴) of the step; a jump makes it O(1)
+LAST_STEP_STRETCH = 1.5  # a remainder up to this many steps is taken in one, so no sliver is left
+GROWTH = 2.0  # after an accepted short step, the next may be this much longer (up to the node spacing)
+
+LIMIT = "limit"  # Newton found no assembly: a limit position of the driven coordinate
+SINGULAR = "singular"  # Φq near singular at an instant
+CROSSED = "crossed"  # det Φq changed sign: a singular configuration between two instants
+JUMP = "jump"  # the step left the branch
+
+
+@dataclass
+class State:
+    """One solved instant: master angle (rad), q, q', q'' (n,), sign of det Φq, condition."""
+
+    theta: float
+    q: np.ndarray
+    dq: np.ndarray
+    ddq: np.ndarray
+    det_sign: float
+    condition: float
+
+
+@dataclass
+class Stop:
+    """Why and where a march stopped: the last solved `state` and the angle `failed` (rad) it could not reach."""
+
+    reason: str
+    state: State
+    failed: float
+
+
+def solve_instant(system, theta: float, guess: np.ndarray) -> tuple[State | None, str]:
+    """Newton from `guess` (n,) at θ; the state with q', q'' or (None, reason)."""
+    drive = system.drive(np.array([theta]))
+    solved = newton(system, guess[:, None], drive, None, STEP_ITERATIONS)
+    if not solved.converged[0]:
+        return None, LIMIT
+    F = solved.factor
+    dq, ddq = derivatives(system, solved, drive, orders=2)
+    state = State(theta, solved.q[:, 0], dq[:, 0], ddq[:, 0], float(F.det_sign[0]), float(F.condition[0]))
+    if not state.condition <= DEAD_POINT_CONDITION:
+        return state, SINGULAR
+    return state, ""
+
+
+def branch_defect(system, q_a, dq_a, ddq_a, q_b, dq_b, ddq_b, h):
+    """Euler–Maclaurin defect of the steps a→b as a share of the step (scaled); arrays (n, N) or (n,)."""
+    defect = q_b - q_a - 0.5 * h * (dq_a + dq_b) + h * h / 12.0 * (ddq_b - ddq_a)
+    scale = system.col_scale if q_a.ndim == 1 else system.col_scale[:, None]
+    size = np.max(np.abs((q_b - q_a) / scale), axis=0)
+    size = size + np.max(np.abs(h * (dq_a + dq_b) / scale), axis=0) * 0.5
+    return np.max(np.abs(defect / scale), axis=0) / np.maximum(size, 1e-300)
+
+
+def step(system, state: State, h: float, theta: float | None = None) -> tuple[State | None, str]:
+    """One predicted and corrected step of length h (rad); (state, "") or (None or state, reason)."""
+    theta = state.theta + h if theta is None else theta
+    guess = state.q + state.dq * h + 0.5 * state.ddq * h * h
+    new, reason = solve_instant(system, theta, guess)
+    if reason:
+        return None, reason
+    if new.det_sign != state.det_sign:
+        return None, CROSSED
+    if branch_defect(system, state.q, state.dq, state.ddq, new.q, new.dq, new.ddq, h) > BRANCH_TOLERANCE:
+        return None, JUMP
+    return new, ""
+
+
+def march(system, start: State, targets, max_step: float = COARSE_STEP, record: bool = False):
+    """States at each master angle of `targets` (increasing, after start.theta), and a `Stop` or None.
+
+    With `record`, every accepted step's state is returned, not only those
+    at the targets (the continuation nodes of a cycle).
+    """
+    state = start
+    h = max_step
+    out: list[State] = []
+    for target in targets:
+        while state.theta < target:
+            remaining = target - state.theta
+            last = remaining <= LAST_STEP_STRETCH * h  # never leave a sliver of a step
+            trial = remaining if last else h
+            new, reason = step(system, state, trial, target if last else None)
+            if new is None:
+                h = trial / 2.0
+                if h < MIN_STEP:
+                    return out, Stop(reason, state, state.theta + trial)
+                continue
+            state = new
+            h = min(max_step, trial * GROWTH)
+            if record and state.theta < target:
+                out.append(state)
+        out.append(state)
+    return out, None
