@@ -123,12 +123,12 @@ class Workbench(App):
         bar.append(" ")
         self.query_one(ViewBar).update(bar)
         label = Text(no_wrap=True, overflow="ellipsis", justify="right")
+        if self.history.modified:
+            label.append("● unsaved ", style="bold yellow")
+        label.append(self._file_name())
         name = self.project.machine.name
         if name:
-            label.append(f"{name} · ", style="bold")
-        label.append(self._file_name())
-        if self.history.modified:
-            label.append(" ● unsaved", style="bold yellow")
+            label.append(f" · {name}", style="bold")
         self.query_one(FileLabel).update(label)
 
     def set_status(self, text: str, error: bool = False) -> None:

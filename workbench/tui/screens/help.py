@@ -65,7 +65,7 @@ class HelpScreen(ModalScreen):
             yield Label(Text("Keys"), classes="dialog-title")
             with VerticalScroll(id="help-body"):
                 for title, rows in self.sections:
-                    table = Table(box=None, show_header=False, padding=(0, 1), expand=True)
+                    table = Table(box=None, show_header=False, padding=(0, 1), expand=False)
                     table.add_column("key", style="bold", no_wrap=True, width=14)
                     table.add_column("does")
                     for keys, description, tooltip in rows:

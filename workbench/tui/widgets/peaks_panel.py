@@ -12,21 +12,30 @@ from motionlaws.peaks import QUANTITIES
 from ..compute import AxisResult
 from ..format import OVER_STYLE, OK_STYLE, WARN_STYLE, degrees, number, unit_of, used_bar, verdict
 
-MAX_JOIN_LINES = 3  # join warnings listed before "… and n more"
+
+
+JUMPS = (  # (attribute, what jumps, unit power, what follows)
+    ("velocity_jump", "velocity", "/s", "acceleration and jerk ∞"),
+    ("acceleration_jump", "acceleration", "/s²", "jerk ∞"),
+)
 
 
 def join_lines(result: AxisResult) -> list[Text]:
-    """One warning per velocity or acceleration jump, with its size and where."""
-    unit = result.unit
+    """Velocity and acceleration jumps at joins: one line per jump, or one line per
+    kind listing the angles when a kind jumps at several joins."""
     lines = []
-    for j in result.report.joins:
-        where = f"join {degrees(j.at)} (segment {j.left}→{j.right})"
-        if j.velocity_jump:
-            lines.append(Text(f"! {where}: velocity jumps {number(j.velocity_jump, unit + '/s')}"
-                              " → infinite acceleration and jerk", style=WARN_STYLE))
-        if j.acceleration_jump:
-            lines.append(Text(f"! {where}: acceleration jumps {number(j.acceleration_jump, unit + '/s²')}"
-                              " → infinite jerk", style=WARN_STYLE))
+    for attr, what, power, follows in JUMPS:
+        jumps = [j for j in result.report.joins if getattr(j, attr)]
+        unit = result.unit + power
+        if len(jumps) == 1:
+            j = jumps[0]
+            lines.append(Text(f"! {follows}: {what} jumps {number(getattr(j, attr), unit)} "
+                              f"at {degrees(j.at)} (segment {j.left}→{j.right})", style=WARN_STYLE))
+        elif jumps:
+            largest = max(abs(getattr(j, attr)) for j in jumps)
+            at = ", ".join(degrees(j.at) for j in jumps)
+            lines.append(Text(f"! {follows}: {what} jumps ≤ {number(largest, unit)} at {at}",
+                              style=WARN_STYLE))
     return lines
 
 
@@ -89,11 +98,5 @@ class PeaksPanel(Static):
             self.rows[q] = {"value": value, "at": degrees(peak.at),
                             "limit": number(check.limit, unit) if check else "—",
                             "used": used, "verdict": word.plain}
-        lines = join_lines(result)
-        shown = lines[:MAX_JOIN_LINES]
-        if len(lines) > MAX_JOIN_LINES:
-            shown.append(Text(f"  … and {len(lines) - MAX_JOIN_LINES} more join jumps (see check)",
-                              style=WARN_STYLE))
-        if not lines:
-            shown = [Text("joins: ✓ no jumps in velocity or acceleration", style="dim")]
-        self.update(Group(table, max_speed_line(result), *shown))
+        lines = join_lines(result) or [Text("joins: ✓ no jumps in velocity or acceleration", style="dim")]
+        self.update(Group(table, max_speed_line(result), *lines))
