@@ -3,3 +3,5 @@
 Each part module registers itself on import (see DEVELOPERS.md, "Adding a
 part to the project file"); list it here.
 """
+
+from . import camfile, camreport  # noqa: E402,F401  (the [[cam]] part and its check section)
