@@ -38,6 +38,10 @@ LIMIT = "limit"  # Newton found no assembly: a limit position of the driven coor
 SINGULAR = "singular"  # Φq near singular at an instant
 CROSSED = "crossed"  # det Φq changed sign: a singular configuration between two instants
 JUMP = "jump"  # the step left the branch
+# Near a dead point several symptoms appear while the step shrinks (near a limit
+# position the two branches close in, so a step may also land on the other one);
+# the stop names the most telling: a singular or crossed Φq, then a limit, then a jump.
+REASON_PRIORITY = (SINGULAR, CROSSED, LIMIT, JUMP)
 
 
 @dataclass
@@ -107,6 +111,7 @@ def march(system, start: State, targets, max_step: float = COARSE_STEP, record: 
     state = start
     h = max_step
     out: list[State] = []
+    seen: set[str] = set()  # reasons met since the last accepted step
     for target in targets:
         while state.theta < target:
             remaining = target - state.theta
@@ -114,10 +119,13 @@ def march(system, start: State, targets, max_step: float = COARSE_STEP, record: 
             trial = remaining if last else h
             new, reason = step(system, state, trial, target if last else None)
             if new is None:
+                seen.add(reason)
                 h = trial / 2.0
                 if h < MIN_STEP:
-                    return out, Stop(reason, state, state.theta + trial)
+                    worst = next(r for r in REASON_PRIORITY if r in seen)
+                    return out, Stop(worst, state, state.theta + trial)
                 continue
+            seen.clear()
             state = new
             h = min(max_step, trial * GROWTH)
             if record and state.theta < target:

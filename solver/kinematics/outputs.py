@@ -21,7 +21,6 @@ import numpy as np
 from .base import Coordinate
 from .errors import ModelError
 from .frames import Pose, Rates
-from .model import GROUND
 
 
 @dataclass(frozen=True)
@@ -127,15 +126,17 @@ class CoordinateProbe:
         return tuple(np.broadcast_to(np.asarray(v, dtype=float).reshape(-1), (N,)).copy() for v in (value, d1, d2, d3))
 
 
+def evaluate(system, output, theta, q, dq, ddq, dddq, speed: float) -> OutputCurve:
+    """The `OutputCurve` of `output` from body coordinates and derivatives, each (n, N)."""
+    if hasattr(output, "evaluate_on"):
+        name, unit, values = output.evaluate_on(system, q, dq, ddq, dddq)
+    else:
+        probe = CoordinateProbe(system, output)
+        name, unit, values = probe.name, probe.unit, probe.evaluate(q, dq, ddq, dddq)
+    return OutputCurve(name, unit, theta, *values, speed)
+
+
 def evaluate_output(result, output) -> OutputCurve:
     """The `OutputCurve` of `output` over a `CycleResult`."""
     q, dq, ddq, dddq = (a.T for a in (result.q, result.dq, result.ddq, result.dddq))
-    if hasattr(output, "evaluate_on"):
-        name, unit, values = output.evaluate_on(result.system, q, dq, ddq, dddq)
-    else:
-        probe = CoordinateProbe(result.system, output)
-        name, unit, values = probe.name, probe.unit, probe.evaluate(q, dq, ddq, dddq)
-    return OutputCurve(name, unit, result.theta, *values, result.speed)
-
-
-_ = GROUND
+    return evaluate(result.system, output, result.theta, q, dq, ddq, dddq, result.speed)

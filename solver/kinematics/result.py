@@ -35,8 +35,11 @@ REASONS = {
 class DeadPoint:
     """Where and why a cycle stopped.
 
-    `at` is the last solved master angle (rad), `before` the angle (rad) the
-    solver could not reach; the dead point lies between them.  `joints` are
+    `at` is the last solved master angle (rad), `before` the angle (rad) of
+    the shortest step the solver refused after it.  The dead point lies at
+    or just after `at`: between them, or (near a limit position, where the
+    two branches close in and a step is refused before the limit itself)
+    within a few march.MIN_STEP beyond.  `joints` are
     the joints the singular motion works (their two bodies move relative to
     each other), `bodies` the bodies it moves; `condition` is the 1-norm
     condition number of scaled Φq at `at`.
@@ -51,7 +54,7 @@ class DeadPoint:
 
     @property
     def message(self) -> str:
-        where = f"between master {math.degrees(self.at):.4f}° and {math.degrees(self.before):.4f}°"
+        where = f"at master {math.degrees(self.at):.4f}°"
         joints = f"; joints involved: {', '.join(self.joints)}" if self.joints else ""
         return f"{REASONS.get(self.reason, self.reason)} — {where}{joints}"
 

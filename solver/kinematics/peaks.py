@@ -1,0 +1,163 @@
+"""Peaks of linkage outputs, their limits, and the highest machine speed that keeps them.
+
+A peak is a true maximum, not the largest sample.  Around the best sampled
+instant (and around any other sampled local maximum within PEAK_CANDIDATE
+of it) the mechanism is solved again on a dense local grid — a batched
+Newton from the Hermite interpolation of the neighbouring solutions — and
+a parabola through the best dense sample and its two neighbours gives the
+peak.  On a cycle of 3,600 instants the local grid spacing is 0.1°/32 ≈
+0.003°; for a smooth peak the parabola's error in the value is of order
+(spacing)³ relative, far below the 0.1 % the product promises (the tests
+check agreement with closed forms to 1e-9).  A peak at the end of an
+unfinished cycle is taken as sampled.
+
+The types are motionlaws' `Peak` and `LimitCheck`, so linkage outputs report
+like axes: `Peak.at` in master degrees, values in SI per s^k.  Position,
+velocity, acceleration and jerk of a linkage driven by cam-like motion
+programs scale as N⁰, N¹, N², N³ with machine speed N, which gives the
+highest speed within all limits in closed form, as for an axis.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from motionlaws.peaks import LimitCheck, Peak
+from motionlaws.program import Limits
+
+from .hermite import interpolate
+from .newton import derivatives, newton
+from .outputs import OutputCurve, evaluate
+
+PEAK_CANDIDATE = 0.99  # other sampled local maxima within this share of the best are refined too
+LOCAL_POINTS = 65  # dense local grid over the two sample intervals around a candidate
+QUANTITIES = ("velocity", "acceleration", "jerk")
+
+
+@dataclass(frozen=True)
+class OutputPeaks:
+    """Peaks of one output: extremes of its value and peak |velocity|, |acceleration|, |jerk|.
+
+    `minimum`, `maximum`: Peak of the value (m or rad, signed); `peaks`: the
+    three time-derivative peaks (absolute values, per s^k at `speed`).
+    """
+
+    name: str
+    unit: str
+    speed: float
+    minimum: Peak
+    maximum: Peak
+    peaks: dict[str, Peak]
+
+
+def _local(result, output, lo: float, hi: float) -> OutputCurve:
+    """The output solved afresh on LOCAL_POINTS master angles in [lo, hi] (rad)."""
+    system = result.system
+    theta = np.linspace(lo, hi, LOCAL_POINTS)
+    t = result.theta
+    q, dq, ddq = result.q.T, result.dq.T, result.ddq.T
+    if t.size > 1:
+        guess = interpolate(t, q, dq, ddq, np.clip(theta, t[0], t[-1]))
+        outside = (theta < t[0]) | (theta > t[-1])
+        if np.any(outside):  # beyond the solved ends: Taylor from the nearest end
+            end = np.where(theta < t[0], 0, t.size - 1)
+            h = theta - t[end]
+            taylor = q[:, end] + dq[:, end] * h + 0.5 * ddq[:, end] * h * h + result.dddq.T[:, end] * h**3 / 6
+            guess[:, outside] = taylor[:, outside]
+    else:
+        guess = np.repeat(q, theta.size, axis=1)
+    drive = system.drive(theta)
+    solved = newton(system, guess, drive, system.elimination_plan())
+    d1, d2, d3 = derivatives(system, solved, drive)
+    curve = evaluate(system, output, theta, solved.q, d1, d2, d3, result.speed)
+    if not solved.converged.all():
+        keep = solved.converged
+        curve = OutputCurve(curve.name, curve.unit, theta[keep], curve.value[keep], curve.d1[keep], curve.d2[keep], curve.d3[keep], curve.speed)
+    return curve
+
+
+def _parabola(x: np.ndarray, y: np.ndarray, k: int) -> tuple[float, float]:
+    """(x, y) of the vertex of the parabola through samples k−1, k, k+1 (the sample itself at an end)."""
+    if k == 0 or k == len(y) - 1:
+        return float(x[k]), float(y[k])
+    y0, y1, y2 = y[k - 1], y[k], y[k + 1]
+    denom = y0 - 2.0 * y1 + y2
+    if denom >= 0.0:
+        return float(x[k]), float(y1)
+    h = x[k + 1] - x[k]
+    shift = 0.5 * (y0 - y2) / denom
+    return float(x[k] + shift * h), float(y1 - 0.25 * (y0 - y2) * shift)
+
+
+def refined_max(result, output, signal, order: int, sign: float = 1.0) -> tuple[float, float]:
+    """(max of sign·f, master angle in rad) where f is the value (order 0) or |derivative| (order ≥ 1)."""
+    theta = result.theta
+    y = sign * signal if order == 0 else np.abs(signal)
+    best = float(np.max(y))
+    periodic = result.success and theta.size > 2
+    step = theta[1] - theta[0] if theta.size > 1 else 0.0
+    left, right = np.roll(y, 1), np.roll(y, -1)
+    if not periodic:
+        left[0], right[-1] = -np.inf, -np.inf
+    candidates = np.flatnonzero((y >= left) & (y >= right) & (y >= best * PEAK_CANDIDATE - 1e-300))
+    if candidates.size == 0:
+        candidates = np.array([int(np.argmax(y))])
+    top = (best, float(theta[int(np.argmax(y))]))
+    for i in candidates:
+        lo, hi = theta[i] - step, theta[i] + step
+        if not periodic:
+            lo, hi = max(lo, theta[0]), min(hi, theta[-1])
+        if hi <= lo:
+            continue
+        local = _local(result, output, lo, hi)
+        if local.theta.size < 3:
+            continue
+        values = local.derivative(order)
+        ly = sign * values if order == 0 else np.abs(values)
+        k = int(np.argmax(ly))
+        at, value = _parabola(local.theta, ly, k)
+        if value > top[0]:
+            top = (value, at)
+    return top
+
+
+def output_peaks(result, output) -> OutputPeaks:
+    """Extremes of an output's value and its velocity, acceleration and jerk peaks over a result."""
+    curve = result.output(output)
+    span = 2.0 * math.pi
+
+    def deg(theta: float) -> float:
+        return math.degrees(theta % span if result.success else theta)
+
+    high, at_high = refined_max(result, output, curve.value, 0, 1.0)
+    low, at_low = refined_max(result, output, curve.value, 0, -1.0)
+    peaks = {}
+    for k, q in enumerate(QUANTITIES, start=1):
+        value, at = refined_max(result, output, curve.derivative(k), k)
+        peaks[q] = Peak(value, deg(at))
+    return OutputPeaks(curve.name, curve.unit, result.speed, Peak(-low, deg(at_low)), Peak(high, deg(at_high)), peaks)
+
+
+def check_limits(peaks: OutputPeaks, limits: Limits) -> tuple[LimitCheck, ...]:
+    """Each set limit (SI per s^k) against its peak; `used` is peak/limit."""
+    out = []
+    for q, limit in limits.items():
+        if limit is None:
+            continue
+        peak = peaks.peaks[q]
+        out.append(LimitCheck(q, float(limit), peak, peak.value / float(limit)))
+    return tuple(out)
+
+
+def max_speed(peaks: OutputPeaks, limits: Limits) -> float | None:
+    """Highest machine speed (cycles/min) within every set limit; None without limits or motion."""
+    bounds = []
+    for k, (q, limit) in enumerate(limits.items(), start=1):
+        value = peaks.peaks[q].value
+        if limit is None or not value:
+            continue
+        bounds.append(peaks.speed * (float(limit) / value) ** (1.0 / k))
+    return min(bounds) if bounds else None
