@@ -213,5 +213,7 @@ def main(argv: list[str] | None = None) -> int:
         return 130
 
 
+from . import profilecmd  # noqa: E402,F401  (registers `camwright profile`)
+
 if __name__ == "__main__":  # pragma: no cover
     sys.exit(main())
