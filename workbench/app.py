@@ -78,6 +78,8 @@ class Workbench(App):
         """The status line's text (what happened last, or why it was refused)."""
         self.results_for: Project | None = None
         """The project whose numbers are on screen."""
+        self.results: dict = {}
+        """The latest numbers (`AxisResult` by axis name), for views that come on screen."""
 
     @property
     def project(self) -> Project:
@@ -121,7 +123,7 @@ class Workbench(App):
             else:
                 bar.append(f" {n} {cls.title} ", style="dim")
         bar.append(" ")
-        self.query_one(ViewBar).update(bar)
+        self.query_one(ViewBar).update(bar, layout=False)
         label = Text(no_wrap=True, overflow="ellipsis", justify="right")
         if self.history.modified:
             label.append("● unsaved ", style="bold yellow")
@@ -129,19 +131,21 @@ class Workbench(App):
         name = self.project.machine.name
         if name:
             label.append(f" · {name}", style="bold")
-        self.query_one(FileLabel).update(label)
+        self.query_one(FileLabel).update(label, layout=False)
 
     def set_status(self, text: str, error: bool = False) -> None:
         self.status_text = ("✗ " if error else "") + text
-        self.query_one(StatusLine).update(Text(self.status_text, style="bold red" if error else ""))
+        self.query_one(StatusLine).update(Text(self.status_text, style="bold red" if error else ""),
+                                          layout=False)
 
     # --- state --------------------------------------------------------------
 
     def _show_state(self) -> None:
-        """Send the current project down to every view and start the numbers."""
+        """Send the current project down to the view on screen and start the numbers.
+
+        Views off screen catch up when they are shown (`action_view`)."""
         project = self.project
-        for view in self.views:
-            view.show_project(project)
+        self.current_view.show_project(project)
         self._refresh_bars()
         self.recompute(project)
 
@@ -157,8 +161,8 @@ class Workbench(App):
         if message.project is not self.project:
             return  # an edit came after: its own results are on the way
         self.results_for = message.project
-        for view in self.views:
-            view.show_results(message.project, message.results)
+        self.results = message.results
+        self.current_view.show_results(message.project, message.results)
 
     @on(ProjectEdited)
     def _edited(self, message: ProjectEdited) -> None:
@@ -193,8 +197,12 @@ class Workbench(App):
     def action_view(self, view_id: str) -> None:
         self.screen.set_focus(None)
         self.query_one("#views", ContentSwitcher).current = view_id
+        view = self.current_view
+        view.show_project(self.project)
+        if self.results_for is not None:
+            view.show_results(self.results_for, self.results)
         self._refresh_bars()
-        self.current_view.focus_first()
+        view.focus_first()
 
     # --- files --------------------------------------------------------------
 

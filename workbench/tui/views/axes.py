@@ -99,7 +99,7 @@ class AxesView(WorkbenchView):
         table = self.query_one(SegmentTable)
         if self.project is None or self.axis_name is None:
             table.clear()
-            self.query_one(AxisBar).update("this project has no axes: add an [[axis]] table to the file")
+            self.query_one(AxisBar).update(Text("this project has no axes: add an [[axis]] table to the file"))
             return
         table.show(self.project.axis(self.axis_name), self.project.speed)
         if self._cursor_after is not None:
@@ -129,7 +129,7 @@ class AxesView(WorkbenchView):
             bar.append_text(axis_verdict(result.report.ok, axis.limits.any))
         if not fresh:
             bar.append("  (computing…)", style="dim")
-        self.query_one(AxisBar).update(bar)
+        self.query_one(AxisBar).update(bar, layout=False)  # one line, always
         self.query_one(PeaksPanel).show(result)
         panel = self.query_one(PlotPanel)
         if result is not None and not self.plot_chosen and result.report.checks:

@@ -11,6 +11,7 @@ there is room.
 from __future__ import annotations
 
 import math
+from contextlib import ExitStack
 from typing import Sequence
 
 import numpy as np
@@ -19,16 +20,19 @@ from textual.app import ComposeResult
 from textual.containers import Grid
 from textual.reactive import reactive
 from textual.widgets import Static
+from textual_hires_canvas import Canvas, TextAlign
 from textual_plot import HiResMode, PlotWidget
+from textual_plot.plot_widget import Legend
 from textual_plot.axis_formatter import AxisFormatter
 
 from ..compute import QUANTITIES, AxisResult
 from ...axisreport import fmt
 from ..format import unit_of
 from ..sampling import downsample_minmax
+from .braille import braille_cells
 
 CURVE_STYLE = {"position": "bright_cyan", "velocity": "bright_green",
-               "acceleration": "bright_yellow", "jerk": "bright_magenta"}
+               "acceleration": "bright_yellow", "jerk": "bright_blue"}
 LIMIT_STYLE = "red"  # the limit lines; the title says "limit ±…" in words too
 BOUNDARY_STYLE = "bright_black"
 ROWS_PER_TICK = 3  # a y tick label every 3 rows at most, so labels never touch
@@ -83,6 +87,28 @@ class AngleFormatter(AxisFormatter):
         return [f"{t:g}°" for t in ticks]
 
 
+class FrameCanvas(Canvas):
+    """A canvas that works out its base style once per repaint, not once per line.
+
+    (The stock canvas asks for `rich_style` on every line, which walks the
+    widget's ancestors each time: most of a plot's repaint.)"""
+
+    _frame_style = None
+
+    @property
+    def rich_style(self):
+        if self._frame_style is not None:
+            return self._frame_style
+        return super().rich_style
+
+    def render_lines(self, crop):
+        self._frame_style = super().rich_style
+        try:
+            return super().render_lines(crop)
+        finally:
+            self._frame_style = None
+
+
 class MotionPlot(PlotWidget, can_focus=False):
     """One quantity of one axis against master angle (deg)."""
 
@@ -109,10 +135,41 @@ class MotionPlot(PlotWidget, can_focus=False):
         self.set_x_formatter(AngleFormatter())
         self.set_xlimits(0.0, 360.0)
 
+    def compose(self) -> ComposeResult:
+        """The stock layout of `PlotWidget`, with `FrameCanvas` in place of `Canvas`."""
+        with Grid():
+            yield FrameCanvas(1, 1, id="margin-top")
+            yield FrameCanvas(1, 1, id="margin-left")
+            yield FrameCanvas(1, 1, id="plot")
+            yield FrameCanvas(1, 1, id="margin-bottom")
+        yield Legend(id="legend")
+
+    def _render_plot(self) -> None:
+        """Draw with each canvas's refresh held until the end (one refresh, not one per cell)."""
+        with ExitStack() as stack:
+            for canvas in self.query(Canvas):
+                stack.enter_context(canvas.batch_refresh())
+            super()._render_plot()
+
+    def _render_line_plot(self, dataset) -> None:
+        """Braille lines drawn with numpy (`braille.braille_cells`); other modes as stock."""
+        if dataset.hires_mode is not HiResMode.BRAILLE or dataset.x.size == 0:
+            super()._render_line_plot(dataset)
+            return
+        canvas = self.query_one("#plot", Canvas)
+        region = self._scale_rectangle
+        x = region.x + (dataset.x - self._x_min) * (region.right - region.x) / (self._x_max - self._x_min)
+        y = region.bottom + (dataset.y - self._y_min) * (region.y - region.bottom) / (self._y_max - self._y_min)
+        size = canvas._canvas_size
+        columns, rows, chars = braille_cells(x, y, size.width, size.height)
+        buffer, styles = canvas._buffer, canvas._styles
+        for c, r, ch in zip(columns.tolist(), rows.tolist(), chars):
+            buffer[r][c] = ch
+            styles[r][c] = dataset.line_style
+        canvas.refresh()
+
     def _render_y_label(self) -> None:
         """The title, left-aligned across the top margin (the stock label is centred on the axis)."""
-        from textual_hires_canvas import Canvas, TextAlign
-
         margin = self.query_one("#margin-top", Canvas)
         margin.write_text(0, 0, self._y_label, TextAlign.LEFT)
 
@@ -123,6 +180,8 @@ class MotionPlot(PlotWidget, can_focus=False):
         self.call_after_refresh(self.redraw)
 
     def show(self, result: AxisResult | None) -> None:
+        if result is self.result:
+            return
         self.result = result
         self.redraw()
 
@@ -130,6 +189,8 @@ class MotionPlot(PlotWidget, can_focus=False):
         """Draw the curve again at the current size (skipped while hidden)."""
         if not self.is_mounted or not self.display or self.size.width == 0:
             return
+        # the canvases may have changed size without this widget changing (margins): recheck
+        self._needs_canvas_resize = True
         self.clear()
         result = self.result
         if result is None:

@@ -62,12 +62,18 @@ class PeaksPanel(Static):
 
     def __init__(self, **kwargs):
         super().__init__("", **kwargs)
+        self.result: AxisResult | None = None
+        self._height = 0
         self.rows: dict[str, dict] = {}
         """Per quantity: value, at, limit, used, verdict text as shown."""
 
     def show(self, result: AxisResult | None) -> None:
+        if result is not None and result is self.result:
+            return
+        self.result = result
         if result is None:
             self.rows = {}
+            self._height = 1
             self.update(Text("computing …", style="dim"))
             return
         report = result.report
@@ -99,4 +105,7 @@ class PeaksPanel(Static):
                             "limit": number(check.limit, unit) if check else "—",
                             "used": used, "verdict": word.plain}
         lines = join_lines(result) or [Text("joins: ✓ no jumps in velocity or acceleration", style="dim")]
-        self.update(Group(table, max_speed_line(result), *lines))
+        # header + 3 quantities + max speed + joins; a layout pass only when that count changes
+        height = 5 + len(lines)
+        self.update(Group(table, max_speed_line(result), *lines), layout=height != self._height)
+        self._height = height
