@@ -9,11 +9,16 @@ sequential (DESIGN §4):
    taking steps up to COARSE_STEP long, shorter where the branch checks ask
    for it.  This is the sequential part; it follows the branch the designer
    drew and stops at dead points.
-3. Interpolate the marched states to every requested instant (quintic
-   Hermite, hermite.py) and run Newton on all of them at once with the
-   batched factorization (linalg.py); then q', q'', q''' are three batched
-   solves with the same factors.
-4. Check every instant as the march checks its steps (convergence,
+3. Fill the gaps between the marched states with nodes at most
+   NODE_SPACING apart, all solved at once from the quintic Hermite
+   interpolation of the marched states (hermite.py) and checked like march
+   steps; a gap whose new nodes fail a check is marched instead.
+4. Interpolate these nodes to every requested instant and run Newton on all
+   of them at once with the batched factorization (linalg.py); from nodes
+   this close the guess is already within the tolerance, so one iteration
+   usually does.  The velocities, accelerations and jerks are then three
+   batched solves with the same factors.
+5. Check every instant as the march checks its steps (convergence,
    conditioning, det sign, branch consistency between neighbours) and
    re-march, instant by instant, any stretch that fails; a failure there is
    a dead point like any other.
@@ -43,6 +48,7 @@ from .result import DEAD_POINT, NOT_ASSEMBLED, NOT_DRIVEN, SOLVED, CycleResult, 
 from .system import System
 
 INSTANTS = 3600  # default instants per cycle: 0.1° of master angle
+NODE_SPACING = math.radians(3.0)  # from nodes this close the quintic Hermite guess is within ~1e-12 of the link lengths
 SCREEN_CONDITION = DEAD_POINT_CONDITION * 1e-3  # pivot estimate above this sends an instant to the exact check
 
 
@@ -98,6 +104,9 @@ class CycleSolver:
         nodes = [start] + nodes
         if stop is not None:
             nodes.append(stop.state) if stop.state.theta > nodes[-1].theta else None
+        nodes, stop_dense = self._densify(nodes, start)
+        if stop_dense is not None:
+            stop = stop_dense
         end = nodes[-1].theta
         count = int(np.searchsorted(theta, end, side="right"))
         fine = theta[:count]
@@ -110,7 +119,62 @@ class CycleSolver:
         dead = self._dead_point(stop)
         return self._result(DEAD_POINT, dead.message, theta[:count], arrays, speed, requested, dof, dead)
 
-    # -- stage 3 and 4 -------------------------------------------------------------
+    # -- stage 3 -------------------------------------------------------------------
+    def _densify(self, nodes: list[State], start: State):
+        """Fill every gap between marched states with nodes at most NODE_SPACING apart, solved at once."""
+        system = self.system
+        theta = np.array([s.theta for s in nodes])
+        parts = np.maximum(1, np.ceil(np.diff(theta) / NODE_SPACING - 1e-9).astype(int))
+        if np.all(parts == 1):
+            return nodes, None
+        gap = np.repeat(np.arange(len(nodes) - 1), parts - 1)
+        offset = np.concatenate([np.arange(1, p) / p for p in parts])
+        new = theta[gap] + offset * (theta[gap + 1] - theta[gap])
+        Q = np.column_stack([s.q for s in nodes])
+        DQ = np.column_stack([s.dq for s in nodes])
+        DDQ = np.column_stack([s.ddq for s in nodes])
+        drive = system.drive(new)
+        solved = newton(system, interpolate(theta, Q, DQ, DDQ, new), drive, system.elimination_plan())
+        dq, ddq = derivatives(system, solved, drive, orders=2)
+        F = solved.factor
+        ok = solved.converged & (F.det_sign == start.det_sign) & (F.condition <= SCREEN_CONDITION)
+        # branch consistency along each gap: node, new nodes..., next node
+        order = np.argsort(np.concatenate([theta, new]), kind="stable")
+        all_theta = np.concatenate([theta, new])[order]
+        all_q = np.concatenate([Q, solved.q], axis=1)[:, order]
+        all_dq = np.concatenate([DQ, dq], axis=1)[:, order]
+        all_ddq = np.concatenate([DDQ, ddq], axis=1)[:, order]
+        h = np.diff(all_theta)
+        defect = branch_defect(system, all_q[:, :-1], all_dq[:, :-1], all_ddq[:, :-1], all_q[:, 1:], all_dq[:, 1:], all_ddq[:, 1:], h)
+        owner = np.searchsorted(theta, all_theta[:-1], side="right") - 1  # gap each link lies in
+        good_gap = np.ones(len(nodes) - 1, dtype=bool)
+        np.logical_and.at(good_gap, owner, defect <= BRANCH_TOLERANCE)
+        np.logical_and.at(good_gap, gap, ok)
+        if good_gap.all():
+            return self._states(all_theta, all_q, all_dq, all_ddq, start), None
+        out: list[State] = []
+        for k in range(len(nodes) - 1):
+            out.append(nodes[k])
+            inside = np.flatnonzero(gap == k)
+            if good_gap[k]:
+                out.extend(State(float(new[i]), solved.q[:, i], dq[:, i], ddq[:, i], start.det_sign, math.nan) for i in inside)
+                continue
+            step = (theta[k + 1] - theta[k]) / parts[k]
+            marched, stop = march(system, nodes[k], [float(theta[k + 1])], step, record=True)
+            if stop is not None:
+                out.extend(marched)
+                if stop.state.theta > out[-1].theta:
+                    out.append(stop.state)
+                return out, stop
+            out.extend(marched[:-1])  # its last state is node k + 1 itself
+        out.append(nodes[-1])
+        return out, None
+
+    @staticmethod
+    def _states(theta, q, dq, ddq, start) -> list[State]:
+        return [State(float(t), q[:, i], dq[:, i], ddq[:, i], start.det_sign, math.nan) for i, t in enumerate(theta)]
+
+    # -- stage 4 and 5 -------------------------------------------------------------
     def _fine(self, fine: np.ndarray, nodes: list[State], start: State):
         system = self.system
         node_theta = np.array([s.theta for s in nodes])

@@ -112,23 +112,45 @@ def _permutation_sign(order) -> int:
 
 
 class DenseFactor:
-    """Scaled Φq inverted per instant by LAPACK: best for a few instants."""
+    """Scaled Φq inverted per instant by LAPACK: best for a few instants.
+
+    The sign of det Φq and the condition number are worked out on first use
+    only (a Newton iteration needs neither).
+    """
 
     def __init__(self, jac, row_scale, col_scale):
         self.row_scale = row_scale[:, None]
         self.col_scale = col_scale[:, None]
-        scaled = np.moveaxis(jac * row_scale[:, None, None] * col_scale[None, :, None], 2, 0)
-        sign, _ = np.linalg.slogdet(scaled)
-        self.det_sign = sign
-        singular = sign == 0
-        if np.any(singular):
-            scaled = scaled.copy()
-            scaled[singular] += np.eye(scaled.shape[1]) * 1e-300  # keep inv finite; flagged by cond
-        with np.errstate(all="ignore"):
-            self.inverse = np.linalg.inv(scaled)
-            norm = np.max(np.sum(np.abs(scaled), axis=1), axis=1)
-            inv_norm = np.max(np.sum(np.abs(self.inverse), axis=1), axis=1)
-        self.condition = np.where(singular, np.inf, norm * inv_norm)
+        self.scaled = np.moveaxis(jac * row_scale[:, None, None] * col_scale[None, :, None], 2, 0)
+        try:
+            self.inverse = np.linalg.inv(self.scaled)
+        except np.linalg.LinAlgError:  # an exactly singular instant: invert one by one
+            self.inverse = np.empty_like(self.scaled)
+            for k, matrix in enumerate(self.scaled):
+                try:
+                    self.inverse[k] = np.linalg.inv(matrix)
+                except np.linalg.LinAlgError:
+                    self.inverse[k] = np.nan
+        self._det_sign = None
+        self._condition = None
+
+    @property
+    def det_sign(self) -> np.ndarray:
+        """Sign of det Φq per instant (0 where exactly singular)."""
+        if self._det_sign is None:
+            self._det_sign = np.linalg.slogdet(self.scaled)[0]
+        return self._det_sign
+
+    @property
+    def condition(self) -> np.ndarray:
+        """1-norm condition number of scaled Φq per instant (inf where singular)."""
+        if self._condition is None:
+            with np.errstate(all="ignore"):
+                norm = np.max(np.sum(np.abs(self.scaled), axis=1), axis=1)
+                inv_norm = np.max(np.sum(np.abs(self.inverse), axis=1), axis=1)
+                cond = norm * inv_norm
+            self._condition = np.where(np.isfinite(cond), cond, np.inf)
+        return self._condition
 
     def solve(self, b: np.ndarray) -> np.ndarray:
         """x (n, N) with Φq x = b (m, N), per instant."""

@@ -25,13 +25,15 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .linalg import DenseFactor
 from .newton import STEP_ITERATIONS, derivatives, newton
 
-COARSE_STEP = math.radians(5.0)  # master angle between continuation nodes (DESIGN §4: "a few degrees")
+COARSE_STEP = math.radians(30.0)  # longest continuation step; shorter where the checks ask (batched levels fill in)
 MIN_STEP = 1e-7  # rad of master angle: dead points are located to this
 DEAD_POINT_CONDITION = 1e8  # 1-norm condition of scaled Φq: beyond it positions keep under half their digits
 BRANCH_TOLERANCE = 1e-2  # on one branch the Euler–Maclaurin defect is O(h⁴) of the step; a jump makes it O(1)
 LAST_STEP_STRETCH = 1.5  # a remainder up to this many steps is taken in one, so no sliver is left
+NEAR_SINGULAR = 1e4  # condition beyond which a refused step is blamed on a dead point rather than a stray jump
 GROWTH = 2.0  # after an accepted short step, the next may be this much longer (up to the node spacing)
 
 LIMIT = "limit"  # Newton found no assembly: a limit position of the driven coordinate
@@ -46,7 +48,7 @@ REASON_PRIORITY = (SINGULAR, CROSSED, LIMIT, JUMP)
 
 @dataclass
 class State:
-    """One solved instant: master angle (rad), q, q', q'' (n,), sign of det Φq, condition."""
+    """One solved instant: master angle (rad), q, q', q'' (n,), sign of det Φq, condition (NaN: not worked out)."""
 
     theta: float
     q: np.ndarray
@@ -63,6 +65,12 @@ class Stop:
     reason: str
     state: State
     failed: float
+
+
+def condition_at(system, q: np.ndarray) -> float:
+    """1-norm condition number of scaled Φq at coordinates q (n,)."""
+    jac = system.jacobian(q[:, None])
+    return float(DenseFactor(jac, system.row_scale, system.col_scale).condition[0])
 
 
 def solve_instant(system, theta: float, guess: np.ndarray) -> tuple[State | None, str]:
@@ -123,6 +131,10 @@ def march(system, start: State, targets, max_step: float = COARSE_STEP, record: 
                 h = trial / 2.0
                 if h < MIN_STEP:
                     worst = next(r for r in REASON_PRIORITY if r in seen)
+                    if not state.condition >= 0.0:  # not yet known for a node solved in a batch
+                        state.condition = condition_at(system, state.q)
+                    if worst == JUMP and state.condition > NEAR_SINGULAR:
+                        worst = SINGULAR  # the branches meet here: a dead point, not a stray jump
                     return out, Stop(worst, state, state.theta + trial)
                 continue
             seen.clear()

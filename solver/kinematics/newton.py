@@ -53,8 +53,11 @@ def newton(system, q: np.ndarray, drive: np.ndarray, plan=None, max_iterations: 
             converged = (system.scaled_step(step) <= POSITION_TOLERANCE) & (
                 system.scaled_residual(res) <= RESIDUAL_TOLERANCE
             )
-        finite = np.all(np.isfinite(step), axis=0)
-        q[:, finite] += step[:, finite]
+        if np.isfinite(step).all():
+            q += step
+        else:  # singular instants: leave them where they are (they stay unconverged)
+            finite = np.all(np.isfinite(step), axis=0)
+            q[:, finite] += step[:, finite]
         if converged.all():
             return Solved(q, converged, F, iteration)
     return Solved(q, converged, F, max_iterations)
