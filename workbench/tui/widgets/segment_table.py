@@ -39,25 +39,40 @@ class SegmentTable(DataTable):
         for key, label in COLUMNS:
             self.add_column(Text(label), key=key)
 
-    def show(self, axis: Axis, speed_cpm: float) -> None:
-        """Fill the table, keeping the cursor where it was."""
-        row, column = self.cursor_coordinate
-        self.axis = axis
-        self.clear()
+    @staticmethod
+    def cells(axis: Axis, speed_cpm: float) -> list[tuple]:
+        """The rows as shown: number, law, span, from → to, time."""
         cycle_ms = 60_000.0 / speed_cpm
+        rows = []
         for i, (seg, (start, end)) in enumerate(zip(axis.segments, segment_ends(axis)), start=1):
             if seg.law == "dwell":
                 ends = Text(f"holds {number(start, axis.unit)}", style="dim")
             else:
                 ends = Text(f"{arrow(start, end)} {start:g} → {end:g} {axis.unit}")
-            self.add_row(
+            rows.append((
                 Text(str(i), justify="right"),
                 seg.law,
                 Text(f"{seg.span:g}", justify="right"),
                 ends,
                 Text(f"{seg.span / 360.0 * cycle_ms:.1f}", justify="right"),
-                key=str(i),
-            )
+            ))
+        return rows
+
+    def show(self, axis: Axis, speed_cpm: float) -> None:
+        """Fill the table, keeping the cursor where it was; same-sized tables change only their changed cells."""
+        row, column = self.cursor_coordinate
+        same_axis = self.axis is not None and self.axis.name == axis.name
+        self.axis = axis
+        rows = self.cells(axis, speed_cpm)
+        if same_axis and len(rows) == self.row_count:
+            for r, cells in enumerate(rows):
+                for c, value in enumerate(cells):
+                    if str(self.get_cell_at((r, c))) != str(value):
+                        self.update_cell_at((r, c), value, update_width=True)
+            return
+        self.clear()
+        for i, cells in enumerate(rows, start=1):
+            self.add_row(*cells, key=str(i))
         if self.row_count:
             self.move_cursor(row=min(row, self.row_count - 1), column=column, animate=False)
 
