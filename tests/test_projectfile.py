@@ -149,3 +149,31 @@ def test_broken_files_folder(path):
         load_project(path)
     for w in words:
         assert w in info.value.message, info.value.message
+
+
+@pytest.mark.parametrize("name", preset_names())
+def test_saved_layout_is_the_hand_written_one(name):
+    # DESIGN §6 layout: [[axis]] blocks with [axis.limits] and [[axis.segment]]
+    # headers, never inline arrays of tables; floats read back exactly.
+    import tomllib
+
+    from workbench.projectfile import project_data
+
+    project = load_project(preset_path(name))
+    text = dumps(project)
+    assert "[[axis.segment]]" in text and "segment = [" not in text
+    assert tomllib.loads(text) == project_data(project)
+
+
+def test_float_text_is_short_and_exact():
+    from hypothesis import given, strategies as st
+
+    from workbench.tomlwrite import _float
+
+    assert _float(7.0e5) == "7.0e5" and _float(120.0) == "120.0"
+
+    @given(st.floats(allow_nan=False, allow_infinity=False))
+    def exact(v):
+        assert float(_float(v)) == v
+
+    exact()

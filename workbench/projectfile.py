@@ -18,8 +18,6 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Callable
 
-import tomli_w
-
 from motionlaws import (
     Axis,
     EndConditions,
@@ -32,6 +30,7 @@ from motionlaws import (
 )
 
 from .tomlcheck import ProjectError, Table
+from .tomlwrite import dumps as toml_dumps
 
 FILE_VERSION = 1
 UNITS = ("mm", "deg")
@@ -244,7 +243,7 @@ def project_data(project: Project) -> dict:
 
 def dumps(project: Project) -> str:
     """The project file text (canonical layout, comments not kept)."""
-    return tomli_w.dumps(project_data(project))
+    return toml_dumps(project_data(project))
 
 
 def write_atomic(path, text: str) -> None:
