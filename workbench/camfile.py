@@ -38,6 +38,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import MISSING, dataclass, fields
+from typing import TYPE_CHECKING
 
 from solver.cam import (
     FOLLOWERS,
@@ -57,8 +58,10 @@ from solver.cam import (
 from solver.cam.analysis import DEFAULT_POINTS
 from solver.loads import FollowerLoad
 
-from .projectfile import Part, Project, register_part
 from .tomlcheck import ProjectError, Table
+
+if TYPE_CHECKING:
+    from .projectfile import Project
 
 PART_KEY = "cam"
 MM = 1e-3  # m per mm
@@ -295,7 +298,7 @@ def _check_axis(spec: CamSpec, project: Project, t: Table, ft: Table) -> None:
 
 def _parse_cam(raw, project: Project, file, number: int) -> CamSpec:
     guess = raw.get("name") if isinstance(raw, dict) else None
-    label = cam_label(guess if isinstance(guess, str) else None, number)
+    label = cam_label(guess if isinstance(guess, str) and guess.strip() else None, number)
     t = Table(raw, file, label)
     name = t.text("name", required=True)
     if not name.strip():
@@ -355,5 +358,8 @@ def dump_cams(specs) -> list[dict]:
         out.append(entry)
     return out
 
+
+# Imported last: projectfile loads every part module (this one included) when it is first imported.
+from .projectfile import Part, register_part  # noqa: E402
 
 register_part(Part(PART_KEY, parse_cams, dump_cams))
