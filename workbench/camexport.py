@@ -296,7 +296,8 @@ def profile_svg(study: CamStudy, title: str, subtitle: str, caution: str) -> str
     parts.append(f'<g id="centre" stroke="{INK["centre"]}" stroke-width="{w1:.4f}">'
                  f'<line x1="{-h:.4f}" y1="0" x2="{h:.4f}" y2="0"/><line x1="0" y1="{h:.4f}" x2="0" y2="{-h:.4f}"/>'
                  f'</g>')
-    parts.append(_turning_arrow(study.cam.sigma, 0.3 * base, w1 * 1.5))
+    parts.append(_turning_arrow(study.cam.sigma, max(0.3 * base, 2.0 * font), w1 * 1.5))
+    parts.append(_trouble(study, w2, font))
     parts.append(_markers(study, font, w1))
     y = text.put(title_lines, top, 1.15 * font, bold=True)
     y = text.put(sub_lines, y, font)
@@ -308,6 +309,27 @@ def profile_svg(study: CamStudy, title: str, subtitle: str, caution: str) -> str
     parts += text.items
     parts.append("</svg>")
     return "\n".join(parts) + "\n"
+
+
+def _trouble(study: CamStudy, width: float, font: float) -> str:
+    """The stretches of profile that cannot be cut (undercut, cusp), drawn over it in red and named."""
+    a = study.analysis
+    n = len(a.theta)
+    out = [f'<g id="trouble" fill="none" stroke="{INK["fail"]}" stroke-width="{1.6 * width:.4f}">']
+    for name, regions in (("undercut", a.undercut), ("cusp", a.cusp)):
+        for r in regions:
+            k0, k1 = _nearest(a, r.start), _nearest(a, r.end)
+            idx = np.arange(k0, k1 + 1 if k1 >= k0 else k1 + n + 1) % n
+            pts = _mm(a.profile[idx])
+            coords = " ".join(f"{x:.4f},{-y:.4f}" for x, y in pts)
+            out.append(f'<polyline points="{coords}"/>')
+            x, y = pts[len(pts) // 2]
+            away = 2.0 * font / max(math.hypot(x, y), 1e-9)  # label outward, clear of the centre-side markers
+            label = f"{name} {math.degrees(r.start) % 360:.1f}°–{math.degrees(r.end) % 360:.1f}°"
+            out.append(f'<text x="{x * (1 + away):.4f}" y="{-y * (1 + away):.4f}" font-size="{0.75 * font:.3f}" '
+                       f'stroke="none" fill="{INK["fail"]}" text-anchor="middle">{escape(label)}</text>')
+    out.append("</g>")
+    return "".join(out)
 
 
 def _markers(study: CamStudy, font: float, w: float) -> str:

@@ -270,12 +270,10 @@ def _where(intervals) -> str:
     return ", ".join(f"{_num(deg(i.start), 5)}°–{_num(deg(i.end), 5)}°" for i in intervals)
 
 
-def _radius_line(name: str, radii) -> str:
-    c = radii.convex
-    text = f"  {name}: smallest convex radius {_num(mm(c.value))} mm at {_num(deg(c.at), 5)}°"
-    if radii.concave is not None:
-        text += f", smallest concave {_num(mm(radii.concave.value))} mm at {_num(deg(radii.concave.at), 5)}°"
-    return text
+def _radius_row(table: Table, name: str, radii) -> None:
+    c, h = radii.convex, radii.concave
+    table.add_row(name, _num(mm(c.value)), _num(deg(c.at), 5),
+                  "none" if h is None else _num(mm(h.value)), "" if h is None else _num(deg(h.at), 5))
 
 
 def _table(columns) -> Table:
@@ -302,9 +300,12 @@ def cam_table(study: CamStudy) -> Group:
     lines = [head, what, Padding(table, (0, 0, 0, 2))]
     if COMMON_PRACTICE in study.limit_source.values():
         lines.append(Text(DEFAULT_NOTE, style="dim"))
+    radii = _table((("least radius", "left"), ("convex [mm]", "right"), ("at [deg]", "right"),
+                    ("concave [mm]", "right"), ("at [deg]", "right")))
     if a.pitch_radii is not None:
-        lines.append(Text(_radius_line("pitch curve", a.pitch_radii)))
-    lines.append(Text(_radius_line("profile", a.profile_radii)))
+        _radius_row(radii, "pitch curve", a.pitch_radii)
+    _radius_row(radii, "profile", a.profile_radii)
+    lines.append(Padding(radii, (0, 0, 0, 2)))
     if a.face is not None:
         lines.append(Text(f"  contact on the face from {_num(mm(a.face.low.value))} mm to "
                           f"{_num(mm(a.face.high.value))} mm (width {_num(mm(a.face.width))} mm)"))
