@@ -226,6 +226,12 @@ BAD = [
     (_swap("margin = 20.0", "margin = 20.0\nradius = 50.0"), [f"{LIFT}, loads", 'key "radius"', "oscillating followers only"]),
     (_swap("margin = 20.0", "margin = 20.0\nspring = 3"), [f"{LIFT}, loads", 'key "spring"', "not a known key"]),
     (_swap("\nradius = 60.0", "\nradius = 0.0"), [f"{SWING}, loads", 'key "radius"', "positive"]),
+    # a misspelt key is named as such, not reported as the key it should have been
+    (_swap("arm_length = 80.0", "arm_lenght = 80.0"), [f"{SWING}, follower", 'key "arm_lenght"', "not a known key"]),
+    (_swap("follower_mass = 1.5", "follower_mas = 1.5"), [f"{LIFT}, loads", 'key "follower_mas"', "not a known key"]),
+    # a follower type changed without its axis: the motion mismatch comes first
+    (_swap('type = "oscillating-roller"', 'type = "translating-roller"'),
+     [f"{SWING}, follower", 'key "type"', "needs an axis in mm"]),
     (_swap('name = "flat-cam"', 'name = "lift-cam"'), [LIFT, 'key "name"', "unique"]),
     (_swap('name = "flat-cam"', 'name = " "'), ['cam 3', 'key "name"', "must not be empty"]),
     (_swap('name = "flat-cam"\n', ""), ["cam 3", 'key "name"', "is missing"]),

@@ -228,16 +228,25 @@ def _non_negative(t: Table, key: str, *, required=False) -> float | None:
     return value
 
 
-def _parse_follower(t: Table) -> tuple[str, tuple[tuple[str, float], ...]]:
-    kind = t.text("type", required=True, choices=tuple(FOLLOWERS))
+def _refuse_unknown(t: Table, known) -> None:
+    """Name a misspelt key first, before the "is missing" it would otherwise cause."""
+    extra = [k for k in t.data if k not in known]
+    if extra:
+        raise t.error(extra[0], f"is not a known key here (known: {', '.join(sorted(known))})")
+
+
+def _parse_follower(t: Table, kind: str) -> tuple[tuple[str, float], ...]:
+    """The follower's sizes (mm) in the order of its fields; `type` has been read already."""
+    cls = FOLLOWERS[kind]
+    _refuse_unknown(t, {"type", *(f.name for f in fields(cls))})
     sizes = []
-    for f in fields(FOLLOWERS[kind]):
+    for f in fields(cls):
         required = f.default is MISSING and f.default_factory is MISSING
         value = t.number(f.name, required=required)
         if value is not None:
             sizes.append((f.name, value))
     t.done()
-    return kind, tuple(sizes)
+    return tuple(sizes)
 
 
 def _parse_limits(t: Table | None, kind: str, sizes: dict) -> CamLimitsSpec:
@@ -259,6 +268,7 @@ def _parse_limits(t: Table | None, kind: str, sizes: dict) -> CamLimitsSpec:
 def _parse_loads(t: Table | None, kind: str) -> CamLoadsSpec | None:
     if t is None:
         return None
+    _refuse_unknown(t, {f.name for f in fields(CamLoadsSpec)})
     follower_mass = t.number("follower_mass", required=True, positive=True)
     spring_mass = _non_negative(t, "spring_mass")
     spring_rate = _non_negative(t, "spring_rate", required=True)
@@ -276,30 +286,32 @@ def _parse_loads(t: Table | None, kind: str) -> CamLoadsSpec | None:
     return CamLoadsSpec(follower_mass, spring_rate, preload, spring_mass, external, friction, margin, radius)
 
 
-def _check_axis(spec: CamSpec, project: Project, t: Table, ft: Table) -> None:
+def _check_axis(project: Project, name: str, kind: str, t: Table, ft: Table) -> None:
+    """The axis exists, returns to its start every cycle, and moves the way the follower does."""
     names = [a.name for a in project.axes]
-    if spec.axis not in names:
-        raise t.error("axis", f"no axis {spec.axis!r} in this file (axes: {', '.join(names) or 'none'})")
-    axis = project.axis(spec.axis)
-    kind = FOLLOWERS[spec.follower].motion_kind
-    need = UNIT_FOR_MOTION[kind]
-    if axis.unit != need:
-        other = "an oscillating" if kind == "linear" else "a translating"
-        raise ft.error(
-            "type",
-            f"a {spec.follower} follower makes a {'straight-line' if kind == 'linear' else 'swinging'} "
-            f"motion and needs an axis in {need}, but axis {axis.name!r} is in {axis.unit}: "
-            f"choose {other} follower or an axis in {need}",
-        )
+    if name not in names:
+        raise t.error("axis", f"no axis {name!r} in this file (axes: {', '.join(names) or 'none'})")
+    axis = project.axis(name)
     if axis.index:
         raise t.error("axis", f"axis {axis.name!r} advances {axis.index:g} {axis.unit} every cycle "
                       "(index): a cam must return its follower to the start every turn")
+    motion = FOLLOWERS[kind].motion_kind
+    need = UNIT_FOR_MOTION[motion]
+    if axis.unit != need:
+        other = "an oscillating" if motion == "linear" else "a translating"
+        raise ft.error(
+            "type",
+            f"a {kind} follower makes a {'straight-line' if motion == 'linear' else 'swinging'} "
+            f"motion and needs an axis in {need}, but axis {axis.name!r} is in {axis.unit}: "
+            f"choose {other} follower or an axis in {need}",
+        )
 
 
 def _parse_cam(raw, project: Project, file, number: int) -> CamSpec:
     guess = raw.get("name") if isinstance(raw, dict) else None
     label = cam_label(guess if isinstance(guess, str) and guess.strip() else None, number)
     t = Table(raw, file, label)
+    _refuse_unknown(t, {"name", "axis", "turning", "follower", "limits", "loads"})
     name = t.text("name", required=True)
     if not name.strip():
         raise t.error("name", "must not be empty")
@@ -308,12 +320,13 @@ def _parse_cam(raw, project: Project, file, number: int) -> CamSpec:
     ft = t.table("follower", f"{label}, follower")
     if ft is None:
         raise t.error("follower", "is missing: a [cam.follower] table gives the follower type and sizes")
-    kind, sizes = _parse_follower(ft)
+    kind = ft.text("type", required=True, choices=tuple(FOLLOWERS))
+    _check_axis(project, axis, kind, t, ft)
+    sizes = _parse_follower(ft, kind)
     limits = _parse_limits(t.table("limits", f"{label}, limits"), kind, dict(sizes))
     loads = _parse_loads(t.table("loads", f"{label}, loads"), kind)
     t.done()
     spec = CamSpec(name, axis, turning, kind, sizes, limits, loads)
-    _check_axis(spec, project, t, ft)
     try:
         follower_of(spec)
     except CamGeometryError as exc:
