@@ -16,7 +16,7 @@ from ...editing import EditError, law_table
 NOTES = {  # what a designer needs to know beside the coefficients
     "dwell": "holds position",
     "constant-velocity": "velocity jumps at a rest",
-    "harmonic": "acceleration jumps at a rest",
+    "harmonic": "Cj inside; ∞ at a rest (acceleration jumps)",
     "polynomial": "from end conditions",
     "blend": "matches its neighbours",
 }

@@ -8,6 +8,8 @@ from __future__ import annotations
 
 from textual.screen import ModalScreen
 
+from motionlaws import analyse
+
 from ... import editing
 from ...editing import EditError, parse_number, segment_ends
 from ...projectfile import Project
@@ -38,7 +40,18 @@ def describe(old: Project, new: Project, axis_name: str) -> str:
             parts.append(f"segment {i} ends at {ends_b[i - 1][1]:g} {a.unit} (was {ends_a[i - 1][1]:g})")
     if a.limits != b.limits:
         parts.append("limits changed")
-    return "; ".join(parts) if parts else "no change"
+    return ("; ".join(parts) if parts else "no change") + verdict_after(new, axis_name)
+
+
+def verdict_after(project: Project, axis_name: str) -> str:
+    """" — then: jerk 49 % of limit (the most used), all within" for the edited axis."""
+    report = analyse(project.programs[axis_name], project.speed)
+    if not report.checks:
+        return ""
+    worst = max(report.checks, key=lambda c: c.used)
+    share = "∞" if worst.used == float("inf") else f"{worst.used * 100:.0f} %"
+    state = "all within limits" if report.ok else "LIMIT EXCEEDED"
+    return f" — then: {worst.quantity} at {share} of its limit, {state}"
 
 
 def _choices(project: Project, axis_name: str, skip: int | None) -> list[tuple[str, int]]:
