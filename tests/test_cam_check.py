@@ -266,6 +266,7 @@ def test_oscillating_jump_speed_referred_to_the_load_radius(capsys, tmp_path):
     psi, beta, r = math.radians(SWING_DEG), math.radians(SWING_BETA), r_mm * 1e-3
     want = beta * math.sqrt(f0 / (m * r * ca * psi)) * 60 / (2 * math.pi)
     assert cams["swing-cam"]["loads"]["jump_speed"] == pytest.approx(want, rel=1e-6)
+    assert cams["swing-cam"]["loads"]["load_radius"] == r_mm and cams["lift-cam"]["loads"]["load_radius"] is None
 
 
 def test_preload_for_the_margin_gives_the_margin(capsys, tmp_path):

@@ -73,6 +73,7 @@ class CamLoads:
     peak_torque_at: float
     rms_torque: float
     forces: FollowerForces  # arrays in the follower's own coordinate (see solver.loads)
+    load_radius: float | None = None  # mm from the pivot where an oscillating follower's loads act
 
     @property
     def ok(self) -> bool:
@@ -107,6 +108,7 @@ def cam_loads(project: Project, study: CamStudy) -> CamLoads | None:
         margin_given=spec.loads.margin is not None,
         preload=spec.loads.preload,
         preload_for_margin=need / lever,
+        load_radius=None if load_radius(spec) is None else load_radius(spec) * 1e3,
         peak_torque=forces.peak_torque,
         peak_torque_at=round(forces.peak_torque_at, 6) % 360.0,
         rms_torque=forces.rms_torque,
@@ -119,6 +121,7 @@ def loads_json(loads: CamLoads) -> dict:
         "speed": loads.speed,
         "ok": loads.ok,
         "moving_mass": loads.mass,
+        "load_radius": loads.load_radius,
         "min_contact": {"value": loads.min_contact, "at": loads.min_contact_at},
         "contact_kept": loads.contact_kept,
         "jump_speed": loads.jump_speed,
@@ -126,7 +129,8 @@ def loads_json(loads: CamLoads) -> dict:
         "preload": loads.preload,
         "preload_for_margin": loads.preload_for_margin,
         "torque": {"peak": {"value": loads.peak_torque, "at": loads.peak_torque_at}, "rms": loads.rms_torque},
-        "units": {"force": "N", "torque": "N*m", "speed": "cycles/min", "mass": "kg", "angle": "deg"},
+        "units": {"force": "N", "torque": "N*m", "speed": "cycles/min", "mass": "kg", "angle": "deg",
+                  "length": "mm"},
         "note": LOADS_CAUTION.replace("\n", " "),
     }
 
@@ -326,7 +330,7 @@ def loads_table(spec_name: str, loads: CamLoads, oscillating: bool) -> Group:
     state = Text("contact holds", style="green") if loads.ok else Text("CONTACT AT RISK", style="bold red")
     head = Text.assemble((f"loads on cam {spec_name}", "bold"), f"  at {_num(loads.speed)} cycles/min  ", state)
     table = _table((("loads", "left"), ("value", "right"), ("at [deg]", "right"), ("verdict", "left")))
-    where = " at the roller" if oscillating else ""
+    where = f" at {_num(loads.load_radius)} mm" if oscillating else ""
     kept = Text("kept", style="green") if loads.contact_kept else Text("LOST: the follower jumps", style="bold red")
     table.add_row(Text(f"contact force, least{where} [N]"), _num(loads.min_contact),
                   _num(loads.min_contact_at, 5), kept)
@@ -345,7 +349,7 @@ def loads_table(spec_name: str, loads: CamLoads, oscillating: bool) -> Group:
     table.add_row(Text("camshaft torque, RMS [N·m]"), _num(loads.rms_torque), "", "")
     notes = [f"  moving mass {_num(loads.mass)} kg: follower + a third of the spring (common practice)"]
     if oscillating:
-        notes.append("  masses, forces and spring rate are referred to the load radius on the arm")
+        notes.append(f"  mass, forces and spring rate act {_num(loads.load_radius)} mm from the pivot, along the arc")
     return Group(head, Padding(table, (0, 0, 0, 2)), *(Text(n) for n in notes), Text("  " + LOADS_CAUTION.replace("\n", "\n  "), style="dim"))
 
 
