@@ -48,7 +48,7 @@ from .result import DEAD_POINT, NOT_ASSEMBLED, NOT_DRIVEN, SOLVED, CycleResult, 
 from .system import System
 
 INSTANTS = 3600  # default instants per cycle: 0.1° of master angle
-NODE_SPACING = math.radians(3.0)  # from nodes this close the quintic Hermite guess is within ~1e-12 of the link lengths
+NODE_SPACING = math.radians(2.0)  # from nodes this close the quintic Hermite guess is within ~1e-12 of the link lengths
 SCREEN_CONDITION = DEAD_POINT_CONDITION * 1e-3  # pivot estimate above this sends an instant to the exact check
 
 
@@ -239,8 +239,7 @@ class CycleSolver:
         if states:
             idx = np.arange(i, good)
             drive = system.drive(fine[idx])
-            res, jac = system.residual_jacobian(q[:, idx], drive)
-            F = DenseFactor(jac, system.row_scale, system.col_scale)
+            F = DenseFactor(system.jacobian(q[:, idx]), system.row_scale, system.col_scale)
             dddq[:, idx] = F.solve(system.eta(q[:, idx], dq[:, idx], ddq[:, idx], drive))
         if stop is not None:
             return q[:, :good], dq[:, :good], ddq[:, :good], dddq[:, :good], stop, good - 1

@@ -14,8 +14,8 @@ matrix that dominates at thousands of instants.  So two paths, one result:
   dense block, mostly the φ columns, which is eliminated with partial
   pivoting chosen per instant.
 
-Both work on the scaled matrix (rows and columns made dimensionless, see
-System.scaled_jacobian) and return solutions in SI units.  Both give the
+Both judge pivots on the scaled matrix (rows and columns made
+dimensionless, see System.scaled_jacobian) and return solutions in SI units.  Both give the
 sign of det Φq per instant (a sign change between neighbouring instants
 means a singular configuration was passed) and a condition indicator:
 `DenseFactor` the exact 1-norm condition number of scaled Φq, `SparseFactor`
@@ -38,60 +38,89 @@ TINY = 1e-300  # guards a division when a pivot is exactly zero (singular matrix
 
 @dataclass
 class Step:
-    """One planned pivot: row r, column c, rows below to update, columns to the right."""
+    """One planned pivot: row r, column c, rows below to update, columns to the right.
+
+    The *_slot fields locate the entries in a compact Jacobian (see `bind`).
+    """
 
     r: int
     c: int
     below: np.ndarray
     right: np.ndarray
+    pivot_slot: int = -1
+    below_slots: np.ndarray | None = None
+    right_slots: np.ndarray | None = None
+    grid_slots: np.ndarray | None = None
 
 
 class EliminationPlan:
-    """Pivot order of the constant entries and the dense remainder, learned from samples."""
+    """Pivot order of the constant entries and the dense remainder, learned from samples.
+
+    Greedy, one pivot at a time: among entries of the allowed columns that
+    are equal in every sample (constant), at least MIN_CONSTANT_PIVOT in
+    size and the largest of their column (so no multiplier exceeds 1), take
+    the one whose elimination fills in least (Markowitz count).
+    """
 
     def __init__(self, samples: np.ndarray, pivot_columns: np.ndarray):
         """`samples` (n, n, S): scaled Φq at random configurations; `pivot_columns`: columns that may take a constant pivot."""
         n = samples.shape[0]
         M = samples.copy()
-        rows, cols = set(range(n)), set(range(n))
-        allowed = set(int(c) for c in pivot_columns)
+        row_free = np.ones(n, dtype=bool)
+        col_free = np.zeros(n, dtype=bool)
+        allowed = np.zeros(n, dtype=bool)
+        allowed[np.asarray(pivot_columns, dtype=int)] = True
+        col_free[:] = True
         steps = []
         while True:
-            best = None
-            nz = np.any(M != 0.0, axis=2)
-            for c in sorted(cols & allowed):
-                active = [r for r in rows if nz[r, c]]
-                if not active:
-                    continue
-                column_max = max(np.max(np.abs(M[r, c])) for r in active)
-                for r in active:
-                    v = M[r, c]
-                    if np.ptp(v) > CONSTANT_TOLERANCE or abs(v[0]) < MIN_CONSTANT_PIVOT:
-                        continue
-                    if abs(v[0]) < column_max * (1 - CONSTANT_TOLERANCE):
-                        continue
-                    cost = (sum(nz[r, j] for j in cols) - 1) * (len(active) - 1)
-                    if best is None or cost < best[0]:
-                        best = (cost, r, c)
-            if best is None:
+            nz = np.any(M != 0.0, axis=2) & row_free[:, None] & col_free[None, :]
+            size = np.abs(M[:, :, 0])
+            constant = np.ptp(M, axis=2) <= CONSTANT_TOLERANCE
+            column_max = np.max(np.where(nz[:, :, None], np.abs(M), 0.0), axis=(0, 2))
+            candidate = nz & constant & allowed[None, :] & (size >= MIN_CONSTANT_PIVOT)
+            candidate &= size >= column_max[None, :] * (1.0 - CONSTANT_TOLERANCE)
+            if not candidate.any():
                 break
-            _, r, c = best
-            rows.discard(r)
-            cols.discard(c)
-            below = np.array(sorted(i for i in rows if nz[i, c]), dtype=int)
-            right = np.array(sorted(j for j in cols if nz[r, j]), dtype=int)
+            cost = (nz.sum(axis=1)[:, None] - 1) * (nz.sum(axis=0)[None, :] - 1)
+            r, c = np.unravel_index(np.argmin(np.where(candidate, cost, np.iinfo(np.int64).max)), cost.shape)
+            r, c = int(r), int(c)
+            below = np.flatnonzero(nz[:, c] & (np.arange(n) != r))
+            right = np.flatnonzero(nz[r, :] & (np.arange(n) != c))
             if below.size:
                 L = M[below, c] / M[r, c]
                 if right.size:
                     M[np.ix_(below, right)] -= L[:, None, :] * M[r, right][None]
                 M[below, c] = 0.0
+            row_free[r] = False
+            col_free[c] = False
             steps.append(Step(r, c, below, right))
         self.steps = steps
-        self.rest_rows = np.array(sorted(rows), dtype=int)
-        self.rest_cols = np.array(sorted(cols), dtype=int)
+        self.rest_rows = np.flatnonzero(row_free)
+        self.rest_cols = np.flatnonzero(col_free)
         order_r = [s.r for s in steps] + list(self.rest_rows)
         order_c = [s.c for s in steps] + list(self.rest_cols)
         self.sign = _permutation_sign(order_r) * _permutation_sign(order_c)
+        self.rest_slots = None
+
+    def touched(self, n: int) -> np.ndarray:
+        """(n, n) bool: every entry the elimination reads or writes (fill-in included)."""
+        out = np.zeros((n, n), dtype=bool)
+        for s in self.steps:
+            out[s.r, s.c] = True
+            out[s.below, s.c] = True
+            out[s.r, s.right] = True
+            out[np.ix_(s.below, s.right)] = True
+        out[np.ix_(self.rest_rows, self.rest_cols)] = True
+        return out
+
+    def bind(self, slot_of: np.ndarray) -> None:
+        """Locate every entry the plan uses in a compact Jacobian; `slot_of` (n, n) gives each entry's slot."""
+        for s in self.steps:
+            s.pivot_slot = int(slot_of[s.r, s.c])
+            s.below_slots = slot_of[s.below, s.c]
+            s.right_slots = slot_of[s.r, s.right]
+            s.grid_slots = slot_of[np.ix_(s.below, s.right)]
+        self.rest_slots = slot_of[np.ix_(self.rest_rows, self.rest_cols)]
 
 
 def _permutation_sign(order) -> int:
@@ -159,52 +188,58 @@ class DenseFactor:
 
 
 class SparseFactor:
-    """Scaled Φq factored along an `EliminationPlan`, with array operations over instants."""
+    """Φq factored along an `EliminationPlan`, with array operations over instants.
 
-    def __init__(self, plan: EliminationPlan, jac, row_scale, col_scale):
+    The constant pivots are taken on Φq as it is (their rows and columns
+    scale alike); only the small remainder is scaled, where partial
+    pivoting chooses rows and the pivots give the condition estimate.
+    `values` is the compact Jacobian (slots, N) of System.residual_jacobian
+    and is overwritten.
+    """
+
+    def __init__(self, plan: EliminationPlan, values, row_scale, col_scale):
         self.plan = plan
-        self.row_scale = row_scale[:, None]
-        self.col_scale = col_scale[:, None]
-        A = jac * row_scale[:, None, None] * col_scale[None, :, None]
-        N = A.shape[2]
+        V = values
+        N = V.shape[1]
         self.multipliers = []
         det_sign = np.full(N, float(plan.sign))
         for s in plan.steps:
-            pivot = A[s.r, s.c]
-            det_sign *= np.sign(pivot)
+            pivot = V[s.pivot_slot]
             if s.below.size:
-                L = A[s.below, s.c] / pivot
+                L = V[s.below_slots] / pivot
                 if s.right.size:
-                    A[s.below[:, None], s.right[None, :]] -= L[:, None, :] * A[s.r, s.right][None]
+                    V[s.grid_slots] -= L[:, None, :] * V[s.right_slots][None]
             else:
                 L = None
+            det_sign *= np.sign(pivot)
             self.multipliers.append(L)
-        self.A = A
+        self.V = V
         R, C = plan.rest_rows, plan.rest_cols
-        S = A[R[:, None], C[None, :]]  # (r, r, N)
+        self.rest_row_scale = row_scale[R][:, None]
+        self.rest_col_scale = col_scale[C][:, None]
+        S = V[plan.rest_slots] * (self.rest_row_scale[:, :, None] * self.rest_col_scale[None, :, :])
         r = len(R)
         perm = np.tile(np.arange(r)[:, None], (1, N))
-        cols = np.arange(N)
         smallest = np.full(N, np.inf)
         largest = np.ones(N)  # constant pivots are 1 in magnitude
         for k in range(r):
-            p = k + np.argmax(np.abs(S[k:, k, :]), axis=0)
-            moved = p != k
-            if np.any(moved):
-                idx = cols[moved]
-                pk = p[moved]
-                row_k = S[k][:, idx].copy()
-                S[k][:, idx] = S[pk, :, idx].T
-                S[pk, :, idx] = row_k.T
-                perm_k = perm[k, idx].copy()
-                perm[k, idx] = perm[pk, idx]
-                perm[pk, idx] = perm_k
-                det_sign[moved] *= -1.0
+            if k + 1 < r:
+                p = k + np.argmax(np.abs(S[k:, k, :]), axis=0)
+                moved = np.flatnonzero(p != k)
+                if moved.size:
+                    pk = p[moved]
+                    row_k = S[k][:, moved].copy()
+                    S[k][:, moved] = S[pk, :, moved].T
+                    S[pk, :, moved] = row_k.T
+                    perm_k = perm[k, moved].copy()
+                    perm[k, moved] = perm[pk, moved]
+                    perm[pk, moved] = perm_k
+                    det_sign[moved] *= -1.0
             pivot = S[k, k]
             det_sign *= np.sign(pivot)
             size = np.abs(pivot)
-            smallest = np.minimum(smallest, size)
-            largest = np.maximum(largest, size)
+            np.minimum(smallest, size, out=smallest)
+            np.maximum(largest, size, out=largest)
             if k + 1 < r:
                 with np.errstate(all="ignore"):
                     S[k + 1 :, k] /= np.where(pivot == 0.0, TINY, pivot)
@@ -218,7 +253,7 @@ class SparseFactor:
     def solve(self, b: np.ndarray) -> np.ndarray:
         """x (n, N) with Φq x = b (m, N), per instant."""
         plan = self.plan
-        x = b * self.row_scale
+        x = b.copy()
         for s, L in zip(plan.steps, self.multipliers):
             if L is not None:
                 x[s.below] -= L * x[s.r]
@@ -226,7 +261,7 @@ class SparseFactor:
         R, C = plan.rest_rows, plan.rest_cols
         r = len(R)
         if r:
-            y = np.take_along_axis(x[R], self.perm, axis=0)
+            y = np.take_along_axis(x[R] * self.rest_row_scale, self.perm, axis=0)
             S = self.S
             for k in range(1, r):
                 y[k] -= np.sum(S[k, :k] * y[:k], axis=0)
@@ -235,21 +270,21 @@ class SparseFactor:
                     y[k] -= np.sum(S[k, k + 1 :] * y[k + 1 :], axis=0)
                 with np.errstate(all="ignore"):
                     y[k] /= S[k, k]
-            out[C] = y
-        A = self.A
+            out[C] = y * self.rest_col_scale
+        V = self.V
         for s in reversed(plan.steps):
             value = x[s.r]
             if s.right.size:
-                value = value - np.sum(A[s.r, s.right] * out[s.right], axis=0)
-            out[s.c] = value / A[s.r, s.c]
-        return out * self.col_scale
+                value = value - np.sum(V[s.right_slots] * out[s.right], axis=0)
+            out[s.c] = value / V[s.pivot_slot]
+        return out
 
 
 SPARSE_FROM = 64  # instants: from this many on, the planned elimination beats stacked LAPACK
 
 
 def factor(plan: EliminationPlan | None, jac, row_scale, col_scale):
-    """The better factorization of Φq (m, n, N) for the number of instants N."""
-    if plan is not None and jac.shape[2] >= SPARSE_FROM:
-        return SparseFactor(plan, jac, row_scale, col_scale)
-    return DenseFactor(jac, row_scale, col_scale)
+    """The better factorization of Φq for its number of instants; `jac` a System `Jacobian` (consumed)."""
+    if plan is not None and jac.values.shape[1] >= SPARSE_FROM:
+        return SparseFactor(plan, jac.values, row_scale, col_scale)
+    return DenseFactor(jac.dense(), row_scale, col_scale)

@@ -28,7 +28,7 @@ import numpy as np
 from .linalg import DenseFactor
 from .newton import STEP_ITERATIONS, derivatives, newton
 
-COARSE_STEP = math.radians(30.0)  # longest continuation step; shorter where the checks ask (batched levels fill in)
+COARSE_STEP = math.radians(45.0)  # longest continuation step (fewest Newton iterations per cycle in tests); shorter where checks ask
 MIN_STEP = 1e-7  # rad of master angle: dead points are located to this
 DEAD_POINT_CONDITION = 1e8  # 1-norm condition of scaled Φq: beyond it positions keep under half their digits
 BRANCH_TOLERANCE = 1e-2  # on one branch the Euler–Maclaurin defect is O(h⁴) of the step; a jump makes it O(1)

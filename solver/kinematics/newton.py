@@ -87,7 +87,7 @@ def assemble(system, q: np.ndarray, theta: float):
     size = float(system.scaled_residual(res[:, None])[0])
     for _ in range(ASSEMBLY_ITERATIONS):
         res, jac = system.residual_jacobian(q[:, None], drive)
-        res, jac = res[:, 0], jac[:, :, 0]
+        res, jac = res[:, 0], jac.dense()[:, :, 0]
         scaled = jac * system.row_scale[:, None] * system.col_scale[None, :]
         step = np.linalg.lstsq(scaled, -res * system.row_scale, rcond=None)[0] * system.col_scale
         small_step = float(system.scaled_step(step[:, None])[0]) <= POSITION_TOLERANCE

@@ -40,6 +40,32 @@ class Group:
     rows: np.ndarray  # (ROWS, k) row of each equation
     cols: np.ndarray  # (3·slots, k) column of each partial derivative (ground: dummy columns)
     variable: list[tuple[int, int]] = field(default_factory=list)  # (row, col) entries that vary
+    var_slots: np.ndarray | None = None  # compact-Jacobian slot of each varying entry, instance-major per entry
+
+    @property
+    def flat_rows(self) -> np.ndarray:
+        return self.rows.ravel()
+
+
+class Jacobian:
+    """Φq at N instants in compact form: one row of `values` (slots + 1, N) per entry that can be non-zero.
+
+    Row `slots` is always zero (it stands for every structural zero) and
+    row `slots + 1` takes the partials w.r.t. the ground, which has no
+    coordinates.  `dense()` gives the full (m, n, N) array.
+    """
+
+    __slots__ = ("values", "system")
+
+    def __init__(self, values: np.ndarray, system: "System"):
+        self.values = values
+        self.system = system
+
+    def dense(self) -> np.ndarray:
+        sys_ = self.system
+        out = np.zeros((sys_.m * sys_.n, self.values.shape[1]))
+        out[sys_.slot_entries] = self.values[: sys_.slots]
+        return out.reshape(sys_.m, sys_.n, -1)
 
 
 def stack_params(bindings) -> dict[str, np.ndarray]:
@@ -62,6 +88,7 @@ class System:
         index = {name: b for b, name in enumerate(self.bodies)}
         index[GROUND] = self.B
         self.length = mechanism.length_scale()
+        self._scratch: dict = {}
 
         entries = [(j.name, j.resolve(mechanism)) for j in mechanism.joints.values()]
         drivers = list(mechanism.drivers.values())
@@ -79,7 +106,8 @@ class System:
             self.row_units += list(item.ROW_UNITS)
             by_kind.setdefault(type(item), []).append((name, item, binding, rows))
         self.m = len(self.row_names)
-        self.driver_rows = np.arange(self.m - len(drivers), self.m)
+        self.first_driver_row = self.m - len(drivers)  # driver rows come last
+        self.driver_rows = np.arange(self.first_driver_row, self.m)
         self.groups = [self._group(kind, items, index) for kind, items in by_kind.items()]
 
         self.row_scale = np.array([1.0 / self.length if u == LENGTH else 1.0 for u in self.row_units])
@@ -88,6 +116,10 @@ class System:
         for g in self.groups:
             self._fill_constants(g)
         self._plan = None
+        self._layout(None)
+        if self.m == self.n and self.n:
+            self._plan = self._learn_plan()
+            self._layout(self._plan)
 
     # -- compile ---------------------------------------------------------------
     def _group(self, kind, items, index) -> Group:
@@ -113,33 +145,47 @@ class System:
                     g.variable.append((r, c))
         assert k == len(g.names)
 
+
     # -- poses ---------------------------------------------------------------
+    # Poses, rates and the per-kind gathers of them are temporaries of one
+    # evaluation; they live in buffers kept per size (`_scratch`), so that
+    # evaluating thousands of instants does not ask the allocator for fresh
+    # megabytes (and the OS for fresh pages) on every call.  Kinds return new
+    # arrays; whatever refers into a buffer is copied out before it is reused.
+    def _buffer(self, key, shape) -> np.ndarray:
+        buf = self._scratch.get(key)
+        if buf is None or buf.shape != shape:
+            buf = self._scratch[key] = np.empty(shape)
+        return buf
+
     def _poses(self, q: np.ndarray) -> np.ndarray:
         """(5, B+1, N): x, y, φ, cos φ, sin φ of every body; the ground (last) at rest at the origin."""
         N = q.shape[1]
-        out = np.empty((5, self.B + 1, N))
+        out = self._buffer("poses", (5, self.B + 1, N))
         out[:3, : self.B] = q.reshape(self.B, 3, N).transpose(1, 0, 2)
         out[:3, self.B] = 0.0
         np.cos(out[2], out=out[3])
         np.sin(out[2], out=out[4])
         return out
 
-    def _rates(self, dq: np.ndarray) -> np.ndarray:
+    def _rates(self, dq: np.ndarray, key: str = "rates") -> np.ndarray:
         """(3, B+1, N): a derivative of x, y, φ of every body; zero for the ground."""
         N = dq.shape[1]
-        out = np.empty((3, self.B + 1, N))
+        out = self._buffer(key, (3, self.B + 1, N))
         out[:, : self.B] = dq.reshape(self.B, 3, N).transpose(1, 0, 2)
         out[:, self.B] = 0.0
         return out
 
-    @staticmethod
-    def _slot_poses(g: Group, arrays) -> list[Pose]:
-        taken = np.take(arrays, g.slots, axis=1)  # (5, slots, k, N), C-contiguous
+    def _take(self, g: Group, arrays, key) -> np.ndarray:
+        shape = (arrays.shape[0], g.slots.shape[0], g.slots.shape[1], arrays.shape[2])
+        return np.take(arrays, g.slots, axis=1, out=self._buffer((key, id(g)), shape), mode="clip")
+
+    def _slot_poses(self, g: Group, arrays) -> list[Pose]:
+        taken = self._take(g, arrays, "pose")  # (5, slots, k, N)
         return [Pose(*taken[:, t]) for t in range(taken.shape[1])]
 
-    @staticmethod
-    def _slot_rates(g: Group, arrays) -> list[Rates]:
-        taken = np.take(arrays, g.slots, axis=1)
+    def _slot_rates(self, g: Group, arrays, key="rates") -> list[Rates]:
+        taken = self._take(g, arrays, key)
         return [Rates(*taken[:, t]) for t in range(taken.shape[1])]
 
     def stack_params(self, bindings):
@@ -154,7 +200,13 @@ class System:
             out[:, i] = evaluate_motion(motion, theta)
         return out
 
-    def _scatter(self, out, g: Group, values) -> None:
+    @staticmethod
+    def _scatter(out, g: Group, values) -> None:
+        """Write a kind's rows (arrays (k, N) or plain numbers) into out (m, N)."""
+        shape = (g.rows.shape[1], out.shape[1])
+        if all(getattr(v, "shape", None) == shape for v in values):
+            out[g.flat_rows] = np.concatenate(values)
+            return
         for r, value in enumerate(values):
             out[g.rows[r]] = value
 
@@ -164,34 +216,37 @@ class System:
         out = np.empty((self.m, q.shape[1]))
         for g in self.groups:
             self._scatter(out, g, g.kind.residual(g.par, *self._slot_poses(g, arrays)))
-        out[self.driver_rows] -= drive[0]
+        out[self.first_driver_row :] -= drive[0]
         return out
 
     def residual_jacobian(self, q: np.ndarray, drive: np.ndarray):
-        """Φ (m, N) and Φq (m, n, N) at q (n, N)."""
+        """Φ (m, N) and Φq as a compact `Jacobian` at q (n, N)."""
         arrays = self._poses(q)
         N = q.shape[1]
         res = np.empty((self.m, N))
-        jac = np.empty((self.m, self.n + SLOT_COLUMNS, N))
-        jac[...] = self._template[:, :, None]
+        values = np.empty((self.slots + 2, N))
+        values[self._fixed_slots] = self._fixed_values
         for g in self.groups:
             poses = self._slot_poses(g, arrays)
             self._scatter(res, g, g.kind.residual(g.par, *poses))
             if g.variable:
                 partials = g.kind.jacobian(g.par, *poses)
-                for r, c in g.variable:
-                    jac[g.rows[r], g.cols[c]] = partials[r][c]
-        res[self.driver_rows] -= drive[0]
-        return res, jac[:, : self.n]
+                shape = (g.rows.shape[1], N)
+                parts = [partials[r][c] for r, c in g.variable]
+                if any(v.shape != shape for v in parts):
+                    parts = [np.broadcast_to(v, shape) for v in parts]
+                values[g.var_slots] = np.concatenate(parts)
+        res[self.first_driver_row :] -= drive[0]
+        return res, Jacobian(values, self)
 
     def jacobian(self, q: np.ndarray) -> np.ndarray:
-        """Φq (m, n, N) at q (n, N)."""
-        return self.residual_jacobian(q, np.zeros((4, len(self.motions), q.shape[1])))[1]
+        """Φq (m, n, N) at q (n, N), dense."""
+        return self.residual_jacobian(q, np.zeros((4, len(self.motions), q.shape[1])))[1].dense()
 
     def velocity_rhs(self, drive: np.ndarray) -> np.ndarray:
         """−Φθ (m, N): d' in the driver rows, zero elsewhere."""
         out = np.zeros((self.m, drive.shape[2]))
-        out[self.driver_rows] = drive[1]
+        out[self.first_driver_row :] = drive[1]
         return out
 
     def gamma(self, q, dq, drive) -> np.ndarray:
@@ -200,18 +255,18 @@ class System:
         out = np.empty((self.m, q.shape[1]))
         for g in self.groups:
             self._scatter(out, g, g.kind.gamma(g.par, self._slot_poses(g, arrays), self._slot_rates(g, rates)))
-        out[self.driver_rows] += drive[2]
+        out[self.first_driver_row :] += drive[2]
         return out
 
     def eta(self, q, dq, ddq, drive) -> np.ndarray:
         """η (m, N) at q, q', q'' (n, N); Φq q''' = η."""
-        arrays, rates, accels = self._poses(q), self._rates(dq), self._rates(ddq)
+        arrays, rates, accels = self._poses(q), self._rates(dq), self._rates(ddq, "accels")
         out = np.empty((self.m, q.shape[1]))
         for g in self.groups:
             poses = self._slot_poses(g, arrays)
-            vals = g.kind.eta(g.par, poses, self._slot_rates(g, rates), self._slot_rates(g, accels))
+            vals = g.kind.eta(g.par, poses, self._slot_rates(g, rates), self._slot_rates(g, accels, "accels"))
             self._scatter(out, g, vals)
-        out[self.driver_rows] += drive[3]
+        out[self.first_driver_row :] += drive[3]
         return out
 
     # -- scaling and naming --------------------------------------------------
@@ -228,17 +283,50 @@ class System:
         return jac * self.row_scale[:, None, None] * self.col_scale[None, :, None]
 
     def elimination_plan(self):
-        """The planned elimination for batched solves (learned once from random configurations)."""
-        if self._plan is None:
-            rng = np.random.default_rng(PLAN_SEED)
-            q = np.empty((self.n, PLAN_SAMPLES))
-            q[0::3] = rng.uniform(-1.0, 1.0, (self.B, PLAN_SAMPLES)) * self.length
-            q[1::3] = rng.uniform(-1.0, 1.0, (self.B, PLAN_SAMPLES)) * self.length
-            q[2::3] = rng.uniform(-np.pi, np.pi, (self.B, PLAN_SAMPLES))
-            samples = self.scaled_jacobian(self.jacobian(q))
-            xy = np.array([c for c in range(self.n) if c % 3 < 2], dtype=int)
-            self._plan = EliminationPlan(samples, xy) if self.m == self.n else None
+        """The planned elimination for batched solves (None unless Φq is square)."""
         return self._plan
+
+    def _learn_plan(self) -> EliminationPlan:
+        """Learn the elimination from Φq at random configurations (fixed seed: always the same plan)."""
+        rng = np.random.default_rng(PLAN_SEED)
+        q = np.empty((self.n, PLAN_SAMPLES))
+        q[0::3] = rng.uniform(-1.0, 1.0, (self.B, PLAN_SAMPLES)) * self.length
+        q[1::3] = rng.uniform(-1.0, 1.0, (self.B, PLAN_SAMPLES)) * self.length
+        q[2::3] = rng.uniform(-np.pi, np.pi, (self.B, PLAN_SAMPLES))
+        samples = self.scaled_jacobian(self.jacobian(q))
+        xy = np.array([c for c in range(self.n) if c % 3 < 2], dtype=int)
+        return EliminationPlan(samples, xy)
+
+    def _layout(self, plan) -> None:
+        """Give a slot of the compact Jacobian to every entry that is non-zero or that the plan touches."""
+        m, n = self.m, self.n
+        used = self._template[:, :n] != 0.0
+        for g in self.groups:
+            for r, c in g.variable:
+                keep = g.cols[c] < n
+                used[g.rows[r][keep], g.cols[c][keep]] = True
+        if plan is not None:
+            used |= plan.touched(n)
+        slot_of = np.full((m, n), -1, dtype=int)
+        flat = np.flatnonzero(used.ravel())
+        self.slots = flat.size
+        slot_of.ravel()[flat] = np.arange(self.slots)
+        self.slot_entries = flat  # flat (row·n + col) index of each slot
+        zero, ground = self.slots, self.slots + 1  # the always-zero row; the row for partials w.r.t. the ground
+        slot_of[slot_of < 0] = zero
+        self._slot_of = slot_of
+        varying = np.zeros(self.slots + 2, dtype=bool)
+        for g in self.groups:
+            if g.variable:
+                rows = np.concatenate([g.rows[r] for r, _ in g.variable])
+                cols = np.concatenate([g.cols[c] for _, c in g.variable])
+                g.var_slots = np.where(cols < n, slot_of[rows, np.minimum(cols, n - 1)], ground)
+                varying[g.var_slots] = True
+        values = np.append(self._template[:, :n].ravel()[flat], [0.0, 0.0])
+        self._fixed_slots = np.flatnonzero(~varying)
+        self._fixed_values = values[self._fixed_slots][:, None]
+        if plan is not None:
+            plan.bind(slot_of)
 
     def initial_guess(self) -> np.ndarray:
         """The rough initial coordinates of the moving bodies, (n,)."""
