@@ -13,7 +13,8 @@ import pytest
 
 from motionlaws import Limits, analyse
 from workbench import editing
-from workbench.editing import EditError, History
+from workbench.editing import EditError
+from workbench.tui.history import History
 from workbench.presets import preset_path
 from workbench.projectfile import dumps, load_project, loads_project
 

@@ -21,7 +21,8 @@ from textual.containers import Horizontal
 from textual.widgets import ContentSwitcher, Footer, Static
 from textual.worker import get_current_worker
 
-from .editing import EditError, History
+from .editing import EditError
+from .tui.history import History
 from .projectfile import Project, ProjectError, load_project, save_project
 from .tui.commands import WorkbenchCommands, binding_entries
 from .tui.compute import compute_results

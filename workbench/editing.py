@@ -17,7 +17,7 @@ screens and the project file's error messages do.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import replace
 
 from motionlaws import LAWS, Axis, Limits, Machine, ProgramError, Segment, compile_axis, law_ids
 
@@ -351,68 +351,3 @@ def law_table() -> list[tuple[str, tuple[float, float, float] | None]]:
         law = LAWS.get(law_id)
         out.append((law_id, law.coefficients if law is not None and law.moves else None))
     return out
-
-
-# --- history -----------------------------------------------------------------
-
-@dataclass(frozen=True)
-class Step:
-    """One state in the history: the project and what was done to reach it."""
-
-    project: Project
-    note: str
-
-
-class History:
-    """Undo/redo over immutable project snapshots, with a mark for the saved one."""
-
-    def __init__(self, project: Project, limit: int = 500):
-        self._past: list[Step] = []
-        self._future: list[Step] = []
-        self._now = Step(project, "opened")
-        self._saved: Project | None = project
-        self.limit = limit  # snapshots kept for undo; the oldest go first
-
-    @property
-    def current(self) -> Project:
-        return self._now.project
-
-    @property
-    def can_undo(self) -> bool:
-        return bool(self._past)
-
-    @property
-    def can_redo(self) -> bool:
-        return bool(self._future)
-
-    @property
-    def modified(self) -> bool:
-        """True unless the current project is the one last saved (or opened)."""
-        return self._saved is not self._now.project
-
-    def push(self, project: Project, note: str) -> None:
-        self._past.append(self._now)
-        del self._past[: max(0, len(self._past) - self.limit)]
-        self._future.clear()
-        self._now = Step(project, note)
-
-    def undo(self) -> str:
-        """Go one step back; returns the note of the edit undone."""
-        if not self._past:
-            raise EditError("nothing to undo")
-        note = self._now.note
-        self._future.append(self._now)
-        self._now = self._past.pop()
-        return note
-
-    def redo(self) -> str:
-        if not self._future:
-            raise EditError("nothing to redo")
-        self._past.append(self._now)
-        self._now = self._future.pop()
-        return self._now.note
-
-    def mark_saved(self, project: Project) -> None:
-        """The current state was saved as `project` (same content, maybe a new path)."""
-        self._now = Step(project, self._now.note)
-        self._saved = project
