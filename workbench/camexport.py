@@ -92,6 +92,16 @@ def profile_csv(study: CamStudy, axis_unit: str) -> str:
 # --- DXF ---------------------------------------------------------------------
 
 
+def _polyline(msp, points: np.ndarray, layer: str) -> None:
+    """A closed LWPOLYLINE through `points` (mm), its vertices set in one go.
+
+    ezdxf appends vertices one array copy at a time; setting the whole
+    (x, y, start width, end width, bulge) array at once keeps 36,000 points fast.
+    """
+    line = msp.add_lwpolyline([], close=True, dxfattribs={"layer": layer})
+    line.lwpoints.set(np.column_stack((points, np.zeros((len(points), 3)))))
+
+
 def profile_dxf(study: CamStudy, title: str, caution: str) -> str:
     """A DXF (R2010, mm) with the closed profile and its references on named layers."""
     import ezdxf  # noqa: PLC0415 - only the DXF export needs it
@@ -105,10 +115,10 @@ def profile_dxf(study: CamStudy, title: str, caution: str) -> str:
     msp = doc.modelspace()
     a = study.analysis
     outline = _mm(closed_outline(a, "profile"))[:-1]
-    msp.add_lwpolyline(outline.tolist(), format="xy", close=True, dxfattribs={"layer": "CAM-PROFILE"})
+    _polyline(msp, outline, "CAM-PROFILE")
     if a.pitch is not None:
         pitch = _mm(closed_outline(a, "pitch"))[:-1]
-        msp.add_lwpolyline(pitch.tolist(), format="xy", close=True, dxfattribs={"layer": "CAM-PITCH"})
+        _polyline(msp, pitch, "CAM-PITCH")
     base = study.cam.follower.base_radius * MM_PER_M
     msp.add_circle((0.0, 0.0), base, dxfattribs={"layer": "CAM-BASE-CIRCLE"})
     h = CENTRE_MARK * base
