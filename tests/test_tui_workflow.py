@@ -353,3 +353,22 @@ async def test_axis_switch_and_timing_view(project_file):
         await pilot.pause()
         message = str(app.query_one("#linkage").query_one("#pending-text").content)
         assert "not yet available" in message and "[[linkage]]" in message
+
+
+async def test_a_burst_of_edits_ends_with_the_numbers_of_the_last(project_file):
+    from workbench import editing
+    from workbench.tui.messages import ProjectEdited
+
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        project = app.project
+        for span in (95.0, 100.0, 105.0, 110.0, 115.0):
+            project = editing.set_span(project, LID, 0, span)
+            app.post_message(ProjectEdited(project, f"span {span:g}"))
+        await settle(pilot)
+        assert app.project is project
+        assert app.results_for is project  # no older result left on screen
+        v, _ = cycloidal_peaks(40.0, 115.0, 120.0)
+        assert peaks(app)["velocity"]["value"] == f"{v:.4g} mm/s"
+        assert app.history.undo() == "span 115"
