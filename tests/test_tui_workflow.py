@@ -234,6 +234,16 @@ async def test_save_reopen_and_compare_file(project_file, tmp_path):
         await pilot.press("enter")
         await settle(pilot)
         assert other.read_text() == saved and app.project.path == other
+        # saving as an existing other file asks first
+        await pilot.press("f2")
+        await pilot.pause()
+        app.screen.query_one("#path", Input).value = str(project_file)
+        await pilot.press("enter")
+        await pilot.pause()
+        assert isinstance(app.screen, ChoiceDialog)
+        await pilot.press("escape")
+        await pilot.pause()
+        assert app.project.path == other
         await pilot.press("ctrl+o")
         await pilot.pause()
         app.screen.query_one("#path", Input).value = str(project_file)

@@ -234,8 +234,14 @@ class Workbench(App):
             return path
 
         def done(path: Path | None) -> None:
-            if path is not None:
-                self._save_to(path)
+            if path is None:
+                return
+            if path.exists() and path != self.project.path:
+                self.push_screen(ChoiceDialog("File exists", f"{path} exists already.",
+                                              [("o", "overwrite", "overwrite it")]),
+                                 lambda word: self._save_to(path) if word == "overwrite" else None)
+                return
+            self._save_to(path)
 
         current = str(self.project.path) if self.project.path else "project.toml"
         self.push_screen(PathDialog("Save as", current, attempt, "enter: save   esc: cancel"), done)
