@@ -323,3 +323,21 @@ def test_preset_cam_press_is_within_everything(capsys):
     assert {c["follower"]["type"] for c in names.values()} == {
         "translating-roller", "oscillating-roller", "translating-flat"}
     assert names["stamp-cam"]["loads"]["contact_kept"] is True
+
+
+def test_a_cam_left_without_its_axis_by_an_edit_is_reported_not_raised():
+    # A loaded file is checked whole; an edited project (the workbench renames an axis or
+    # switches its unit) may leave a cam that cannot be laid out: the report says so.
+    from dataclasses import replace
+
+    from workbench.camreport import cam_section
+
+    project = loads_project(GOOD, "rig.toml")
+    lift, swing, flat = project.parts["cam"]
+    project.parts["cam"] = [replace(lift, axis="gone"), replace(swing, axis="lift"), flat]
+    key, docs, renderables, ok = cam_section(project)
+    assert key == "cams" and ok is False
+    assert docs[0]["ok"] is False and 'key "axis"' in docs[0]["error"] and "'gone'" in docs[0]["error"]
+    assert docs[1]["ok"] is False and 'key "type"' in docs[1]["error"] and "needs an axis in deg" in docs[1]["error"]
+    assert docs[2]["name"] == "flat-cam" and "pressure_angle" in docs[2]
+    assert "CANNOT BE LAID OUT" in str(renderables[0])

@@ -211,7 +211,14 @@ class CamStudy:
 
 
 def study_cam(project: Project, spec: CamSpec, points: int = DEFAULT_POINTS) -> CamStudy:
-    """Analyse one cam of the project on `points` cam angles and check it."""
+    """Analyse one cam of the project on `points` cam angles and check it.
+
+    Raises `CamGeometryError` (with the key at fault) where the cam cannot be
+    laid out, or where an edit has left the axis unable to drive it.
+    """
+    fault = axis_fault(project, spec.axis, spec.follower)
+    if fault is not None:
+        raise CamGeometryError(fault[1], key=fault[0])
     cam = build_cam(project, spec)
     result = analyse(cam, points=points)
     limits, source = effective_limits(spec, cam.follower)
@@ -286,25 +293,27 @@ def _parse_loads(t: Table | None, kind: str) -> CamLoadsSpec | None:
     return CamLoadsSpec(follower_mass, spring_rate, preload, spring_mass, external, friction, margin, radius)
 
 
-def _check_axis(project: Project, name: str, kind: str, t: Table, ft: Table) -> None:
-    """The axis exists, returns to its start every cycle, and moves the way the follower does."""
+def axis_fault(project: Project, name: str, kind: str) -> tuple[str, str] | None:
+    """(key, problem) when axis `name` cannot drive a `kind` follower, else None.
+
+    The key is "axis" or "type" (the follower's).  A loaded project passes;
+    an edited one (an axis renamed, indexed or switched to another unit) may not.
+    """
     names = [a.name for a in project.axes]
     if name not in names:
-        raise t.error("axis", f"no axis {name!r} in this file (axes: {', '.join(names) or 'none'})")
+        return "axis", f"no axis {name!r} in this file (axes: {', '.join(names) or 'none'})"
     axis = project.axis(name)
     if axis.index:
-        raise t.error("axis", f"axis {axis.name!r} advances {axis.index:g} {axis.unit} every cycle "
-                      "(index): a cam must return its follower to the start every turn")
+        return "axis", (f"axis {axis.name!r} advances {axis.index:g} {axis.unit} every cycle "
+                        "(index): a cam must return its follower to the start every turn")
     motion = FOLLOWERS[kind].motion_kind
     need = UNIT_FOR_MOTION[motion]
     if axis.unit != need:
         other = "an oscillating" if motion == "linear" else "a translating"
-        raise ft.error(
-            "type",
-            f"a {kind} follower makes a {'straight-line' if motion == 'linear' else 'swinging'} "
-            f"motion and needs an axis in {need}, but axis {axis.name!r} is in {axis.unit}: "
-            f"choose {other} follower or an axis in {need}",
-        )
+        return "type", (f"a {kind} follower makes a {'straight-line' if motion == 'linear' else 'swinging'} "
+                        f"motion and needs an axis in {need}, but axis {axis.name!r} is in {axis.unit}: "
+                        f"choose {other} follower or an axis in {need}")
+    return None
 
 
 def _parse_cam(raw, project: Project, file, number: int) -> CamSpec:
@@ -321,7 +330,9 @@ def _parse_cam(raw, project: Project, file, number: int) -> CamSpec:
     if ft is None:
         raise t.error("follower", "is missing: a [cam.follower] table gives the follower type and sizes")
     kind = ft.text("type", required=True, choices=tuple(FOLLOWERS))
-    _check_axis(project, axis, kind, t, ft)
+    fault = axis_fault(project, axis, kind)
+    if fault is not None:
+        raise (ft if fault[0] == "type" else t).error(*fault)
     sizes = _parse_follower(ft, kind)
     limits = _parse_limits(t.table("limits", f"{label}, limits"), kind, dict(sizes))
     loads = _parse_loads(t.table("loads", f"{label}, loads"), kind)

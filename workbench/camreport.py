@@ -18,7 +18,7 @@ from rich.padding import Padding
 from rich.table import Table
 from rich.text import Text
 
-from solver.cam import FOLLOWERS, RollerFollower
+from solver.cam import FOLLOWERS, CamGeometryError, RollerFollower
 from solver.loads import FollowerForces, follower_forces, preload_for_margin
 
 from . import axisreport  # a module reference: axisreport may still be loading (it imports projectfile)
@@ -363,7 +363,14 @@ def cam_section(project: Project):
         return None
     docs, renderables, ok = [], [], True
     for spec in specs:
-        study = study_cam(project, spec)
+        try:
+            study = study_cam(project, spec)
+        except CamGeometryError as exc:  # only after an edit: a loaded file has been checked
+            problem = f'key "{exc.key}": {exc.message}' if exc.key else exc.message
+            docs.append({"name": spec.name, "axis": spec.axis, "ok": False, "error": problem})
+            renderables.append(Text(f"cam {spec.name}  CANNOT BE LAID OUT: {problem}", style="bold red"))
+            ok = False
+            continue
         loads = cam_loads(project, study)
         doc = cam_json(study, loads)
         docs.append(doc)
