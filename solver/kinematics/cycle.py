@@ -43,7 +43,7 @@ from .march import (
     march,
     solve_instant,
 )
-from .newton import assemble, derivatives, newton
+from .newton import GUIDE_TOLERANCE, assemble, derivatives, newton
 from .result import DEAD_POINT, NOT_ASSEMBLED, NOT_DRIVEN, SOLVED, CycleResult, DeadPoint
 from .system import System
 
@@ -100,7 +100,7 @@ class CycleSolver:
             dead = self._dead_point(Stop(reason, start, float(theta[0])))
             return self._result(DEAD_POINT, dead.message, theta[:0], None, speed, requested, dof, dead)
 
-        nodes, stop = march(system, start, [float(theta[-1])], COARSE_STEP, record=True)
+        nodes, stop = march(system, start, [float(theta[-1])], COARSE_STEP, record=True, tolerance=GUIDE_TOLERANCE)
         nodes = [start] + nodes
         if stop is not None:
             nodes.append(stop.state) if stop.state.theta > nodes[-1].theta else None
@@ -121,53 +121,49 @@ class CycleSolver:
 
     # -- stage 3 -------------------------------------------------------------------
     def _densify(self, nodes: list[State], start: State):
-        """Fill every gap between marched states with nodes at most NODE_SPACING apart, solved at once."""
+        """Fill the gaps between marched states with nodes at most NODE_SPACING apart, and solve
+        all of them (the marched ones again, to full tolerance) at once."""
         system = self.system
         theta = np.array([s.theta for s in nodes])
         parts = np.maximum(1, np.ceil(np.diff(theta) / NODE_SPACING - 1e-9).astype(int))
-        if np.all(parts == 1):
-            return nodes, None
-        gap = np.repeat(np.arange(len(nodes) - 1), parts - 1)
-        offset = np.concatenate([np.arange(1, p) / p for p in parts])
-        new = theta[gap] + offset * (theta[gap + 1] - theta[gap])
+        offset = np.concatenate([np.arange(p) / p for p in parts] + [np.zeros(1)])
+        gap = np.append(np.repeat(np.arange(len(nodes) - 1), parts), len(nodes) - 1)
+        upper = np.append(theta[1:], theta[-1])
+        points = theta[gap] + offset * (upper[gap] - theta[gap])
         Q = np.column_stack([s.q for s in nodes])
         DQ = np.column_stack([s.dq for s in nodes])
         DDQ = np.column_stack([s.ddq for s in nodes])
-        drive = system.drive(new)
-        solved = newton(system, interpolate(theta, Q, DQ, DDQ, new), drive, system.elimination_plan())
+        drive = system.drive(points)
+        solved = newton(system, interpolate(theta, Q, DQ, DDQ, points), drive, system.elimination_plan())
         dq, ddq = derivatives(system, solved, drive, orders=2)
         F = solved.factor
         ok = solved.converged & (F.det_sign == start.det_sign) & (F.condition <= SCREEN_CONDITION)
-        # branch consistency along each gap: node, new nodes..., next node
-        order = np.argsort(np.concatenate([theta, new]), kind="stable")
-        all_theta = np.concatenate([theta, new])[order]
-        all_q = np.concatenate([Q, solved.q], axis=1)[:, order]
-        all_dq = np.concatenate([DQ, dq], axis=1)[:, order]
-        all_ddq = np.concatenate([DDQ, ddq], axis=1)[:, order]
-        h = np.diff(all_theta)
-        defect = branch_defect(system, all_q[:, :-1], all_dq[:, :-1], all_ddq[:, :-1], all_q[:, 1:], all_dq[:, 1:], all_ddq[:, 1:], h)
-        owner = np.searchsorted(theta, all_theta[:-1], side="right") - 1  # gap each link lies in
+        link_ok = branch_defect(
+            system, solved.q[:, :-1], dq[:, :-1], ddq[:, :-1], solved.q[:, 1:], dq[:, 1:], ddq[:, 1:], np.diff(points)
+        ) <= BRANCH_TOLERANCE
+        # a gap is good when its points, its end point and the links between them all pass
         good_gap = np.ones(len(nodes) - 1, dtype=bool)
-        np.logical_and.at(good_gap, owner, defect <= BRANCH_TOLERANCE)
-        np.logical_and.at(good_gap, gap, ok)
+        np.logical_and.at(good_gap, gap[:-1], ok[:-1] & ok[1:] & link_ok)
+        fresh = self._states(points, solved.q, dq, ddq, start)
         if good_gap.all():
-            return self._states(all_theta, all_q, all_dq, all_ddq, start), None
+            return fresh, None
+        first = np.searchsorted(gap, np.arange(len(nodes)))  # index in `points` of each marched node
         out: list[State] = []
         for k in range(len(nodes) - 1):
-            out.append(nodes[k])
-            inside = np.flatnonzero(gap == k)
             if good_gap[k]:
-                out.extend(State(float(new[i]), solved.q[:, i], dq[:, i], ddq[:, i], start.det_sign, math.nan) for i in inside)
+                out.extend(fresh[first[k] : first[k + 1]])
                 continue
+            begin = fresh[first[k]] if ok[first[k]] else nodes[k]
+            out.append(begin)
             step = (theta[k + 1] - theta[k]) / parts[k]
-            marched, stop = march(system, nodes[k], [float(theta[k + 1])], step, record=True)
+            marched, stop = march(system, begin, [float(theta[k + 1])], step, record=True)
             if stop is not None:
                 out.extend(marched)
                 if stop.state.theta > out[-1].theta:
                     out.append(stop.state)
                 return out, stop
-            out.extend(marched[:-1])  # its last state is node k + 1 itself
-        out.append(nodes[-1])
+            out.extend(marched[:-1])  # its last state is node k + 1, taken from the batch or marched next
+        out.append(fresh[-1] if ok[-1] else nodes[-1])
         return out, None
 
     @staticmethod

@@ -67,25 +67,29 @@ class EliminationPlan:
         n = samples.shape[0]
         M = samples.copy()
         row_free = np.ones(n, dtype=bool)
-        col_free = np.zeros(n, dtype=bool)
+        col_free = np.ones(n, dtype=bool)
         allowed = np.zeros(n, dtype=bool)
         allowed[np.asarray(pivot_columns, dtype=int)] = True
-        col_free[:] = True
+        never = n * n + 1  # a cost above any Markowitz count
         steps = []
         while True:
-            nz = np.any(M != 0.0, axis=2) & row_free[:, None] & col_free[None, :]
-            size = np.abs(M[:, :, 0])
-            constant = np.ptp(M, axis=2) <= CONSTANT_TOLERANCE
-            column_max = np.max(np.where(nz[:, :, None], np.abs(M), 0.0), axis=(0, 2))
-            candidate = nz & constant & allowed[None, :] & (size >= MIN_CONSTANT_PIVOT)
-            candidate &= size >= column_max[None, :] * (1.0 - CONSTANT_TOLERANCE)
+            A = np.abs(M)
+            top = A.max(axis=2)
+            nz = (top > 0.0) & row_free[:, None] & col_free[None, :]
+            size = A[:, :, 0]
+            constant = (M.max(axis=2) - M.min(axis=2)) <= CONSTANT_TOLERANCE
+            column_max = (top * nz).max(axis=0)
+            candidate = nz & constant & allowed & (size >= MIN_CONSTANT_PIVOT)
+            candidate &= size >= column_max * (1.0 - CONSTANT_TOLERANCE)
             if not candidate.any():
                 break
-            cost = (nz.sum(axis=1)[:, None] - 1) * (nz.sum(axis=0)[None, :] - 1)
-            r, c = np.unravel_index(np.argmin(np.where(candidate, cost, np.iinfo(np.int64).max)), cost.shape)
-            r, c = int(r), int(c)
-            below = np.flatnonzero(nz[:, c] & (np.arange(n) != r))
-            right = np.flatnonzero(nz[r, :] & (np.arange(n) != c))
+            counts = nz.astype(int)
+            cost = np.where(candidate, np.outer(counts.sum(axis=1) - 1, counts.sum(axis=0) - 1), never)
+            r, c = divmod(int(cost.argmin()), n)
+            below = np.flatnonzero(nz[:, c])
+            below = below[below != r]
+            right = np.flatnonzero(nz[r])
+            right = right[right != c]
             if below.size:
                 L = M[below, c] / M[r, c]
                 if right.size:
@@ -247,6 +251,8 @@ class SparseFactor:
         self.S = S
         self.perm = perm
         self.det_sign = det_sign
+        # back substitution reads the same pivot rows for every right-hand side: gather them once
+        self.back = [(V[s.right_slots] if s.right.size else None, 1.0 / V[s.pivot_slot]) for s in plan.steps]
         with np.errstate(divide="ignore"):
             self.condition = np.where(smallest > 0.0, largest / smallest, np.inf) if r else np.ones(N)
 
@@ -271,12 +277,11 @@ class SparseFactor:
                 with np.errstate(all="ignore"):
                     y[k] /= S[k, k]
             out[C] = y * self.rest_col_scale
-        V = self.V
-        for s in reversed(plan.steps):
+        for s, (row, inverse) in zip(reversed(plan.steps), reversed(self.back)):
             value = x[s.r]
-            if s.right.size:
-                value = value - np.sum(V[s.right_slots] * out[s.right], axis=0)
-            out[s.c] = value / V[s.pivot_slot]
+            if row is not None:
+                value = value - np.sum(row * out[s.right], axis=0)
+            out[s.c] = value * inverse
         return out
 
 

@@ -26,7 +26,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .linalg import DenseFactor
-from .newton import STEP_ITERATIONS, derivatives, newton
+from .newton import POSITION_TOLERANCE, STEP_ITERATIONS, derivatives, newton
 
 COARSE_STEP = math.radians(45.0)  # longest continuation step (fewest Newton iterations per cycle in tests); shorter where checks ask
 MIN_STEP = 1e-7  # rad of master angle: dead points are located to this
@@ -73,10 +73,10 @@ def condition_at(system, q: np.ndarray) -> float:
     return float(DenseFactor(jac, system.row_scale, system.col_scale).condition[0])
 
 
-def solve_instant(system, theta: float, guess: np.ndarray) -> tuple[State | None, str]:
+def solve_instant(system, theta: float, guess: np.ndarray, tolerance: float = POSITION_TOLERANCE) -> tuple[State | None, str]:
     """Newton from `guess` (n,) at θ; the state with q', q'' or (None, reason)."""
     drive = system.drive(np.array([theta]))
-    solved = newton(system, guess[:, None], drive, None, STEP_ITERATIONS)
+    solved = newton(system, guess[:, None], drive, None, STEP_ITERATIONS, tolerance)
     if not solved.converged[0]:
         return None, LIMIT
     F = solved.factor
@@ -96,11 +96,11 @@ def branch_defect(system, q_a, dq_a, ddq_a, q_b, dq_b, ddq_b, h):
     return np.max(np.abs(defect / scale), axis=0) / np.maximum(size, 1e-300)
 
 
-def step(system, state: State, h: float, theta: float | None = None) -> tuple[State | None, str]:
-    """One predicted and corrected step of length h (rad); (state, "") or (None or state, reason)."""
+def step(system, state: State, h: float, theta: float | None = None, tolerance: float = POSITION_TOLERANCE):
+    """One predicted and corrected step of length h (rad); (state, "") or (None, reason)."""
     theta = state.theta + h if theta is None else theta
     guess = state.q + state.dq * h + 0.5 * state.ddq * h * h
-    new, reason = solve_instant(system, theta, guess)
+    new, reason = solve_instant(system, theta, guess, tolerance)
     if reason:
         return None, reason
     if new.det_sign != state.det_sign:
@@ -110,11 +110,16 @@ def step(system, state: State, h: float, theta: float | None = None) -> tuple[St
     return new, ""
 
 
-def march(system, start: State, targets, max_step: float = COARSE_STEP, record: bool = False):
+def march(
+    system, start: State, targets, max_step: float = COARSE_STEP, record: bool = False,
+    tolerance: float = POSITION_TOLERANCE,
+):
     """States at each master angle of `targets` (increasing, after start.theta), and a `Stop` or None.
 
     With `record`, every accepted step's state is returned, not only those
-    at the targets (the continuation nodes of a cycle).
+    at the targets (the continuation nodes of a cycle).  `tolerance` is the
+    Newton tolerance of each step (newton.GUIDE_TOLERANCE for states that
+    only guide later solves).
     """
     state = start
     h = max_step
@@ -125,7 +130,7 @@ def march(system, start: State, targets, max_step: float = COARSE_STEP, record: 
             remaining = target - state.theta
             last = remaining <= LAST_STEP_STRETCH * h  # never leave a sliver of a step
             trial = remaining if last else h
-            new, reason = step(system, state, trial, target if last else None)
+            new, reason = step(system, state, trial, target if last else None, tolerance)
             if new is None:
                 seen.add(reason)
                 h = trial / 2.0

@@ -15,6 +15,8 @@ from .linalg import factor
 
 POSITION_TOLERANCE = 1e-10  # scaled step: 1e-11 m on a 0.1 m linkage, far below any workshop tolerance
 RESIDUAL_TOLERANCE = 1e-10  # scaled ‖Φ‖: gaps in joints of the same size
+GUIDE_TOLERANCE = 1e-6  # scaled, for continuation states that only guide later solves; quadratic
+# convergence leaves them ~1e-12 off after the step that meets it, while saving the final check step
 STEP_ITERATIONS = 8  # from a good predictor Newton converges in 2–4 steps; needing more means the step was too long
 ASSEMBLY_ITERATIONS = 60  # from rough coordinates, damped steps may take many
 ASSEMBLY_HALVINGS = 30  # backtracking halvings of one damped assembly step before giving up
@@ -35,12 +37,16 @@ class Solved:
     iterations: int
 
 
-def newton(system, q: np.ndarray, drive: np.ndarray, plan=None, max_iterations: int = STEP_ITERATIONS) -> Solved:
+def newton(
+    system, q: np.ndarray, drive: np.ndarray, plan=None, max_iterations: int = STEP_ITERATIONS,
+    tolerance: float = POSITION_TOLERANCE,
+) -> Solved:
     """Newton–Raphson at N instants at once from the guesses `q` (n, N).
 
     Every instant steps until all have converged or `max_iterations` is
     reached; an instant that has converged keeps taking (negligible) steps,
-    which costs nothing extra in array operations.
+    which costs nothing extra in array operations.  `tolerance` applies to
+    the scaled step and the scaled residual alike.
     """
     q = q.copy()
     converged = np.zeros(q.shape[1], dtype=bool)
@@ -50,8 +56,8 @@ def newton(system, q: np.ndarray, drive: np.ndarray, plan=None, max_iterations: 
         F = factor(plan, jac, system.row_scale, system.col_scale)
         step = F.solve(-res)
         with np.errstate(invalid="ignore"):
-            converged = (system.scaled_step(step) <= POSITION_TOLERANCE) & (
-                system.scaled_residual(res) <= RESIDUAL_TOLERANCE
+            converged = (system.scaled_step(step) <= tolerance) & (
+                system.scaled_residual(res) <= max(tolerance, RESIDUAL_TOLERANCE)
             )
         if np.isfinite(step).all():
             q += step
@@ -70,7 +76,7 @@ def derivatives(system, solved: Solved, drive: np.ndarray, orders: int = 3):
     ddq = F.solve(system.gamma(q, dq, drive))
     if orders == 2:
         return dq, ddq
-    dddq = F.solve(system.eta(q, dq, ddq, drive))
+    dddq = F.solve(system.eta(q, dq, ddq, drive, after_gamma=True))
     return dq, ddq, dddq
 
 
@@ -83,24 +89,26 @@ def assemble(system, q: np.ndarray, theta: float):
     """
     drive = system.drive(np.array([theta]))
     q = q.astype(float).copy()
-    res = system.residual(q[:, None], drive)[:, 0]
-    size = float(system.scaled_residual(res[:, None])[0])
+
+    def evaluate(at):
+        r, j = system.residual_jacobian(at[:, None], drive)
+        return r[:, 0], j.dense()[:, :, 0], float(system.scaled_residual(r)[0])
+
+    res, jac, size = evaluate(q)
     for _ in range(ASSEMBLY_ITERATIONS):
-        res, jac = system.residual_jacobian(q[:, None], drive)
-        res, jac = res[:, 0], jac.dense()[:, :, 0]
         scaled = jac * system.row_scale[:, None] * system.col_scale[None, :]
         step = np.linalg.lstsq(scaled, -res * system.row_scale, rcond=None)[0] * system.col_scale
         small_step = float(system.scaled_step(step[:, None])[0]) <= POSITION_TOLERANCE
         if small_step and size <= RESIDUAL_TOLERANCE:
             return q + step, True
         scale = 1.0
-        for _ in range(ASSEMBLY_HALVINGS):
+        for _ in range(ASSEMBLY_HALVINGS):  # backtrack until the residual shrinks
             trial = q + scale * step
-            trial_size = float(system.scaled_residual(system.residual(trial[:, None], drive))[0])
+            trial_res, trial_jac, trial_size = evaluate(trial)
             if trial_size < size or trial_size <= RESIDUAL_TOLERANCE:
                 break
             scale *= 0.5
         else:
             return q, False
-        q, size = trial, trial_size
+        q, res, jac, size = trial, trial_res, trial_jac, trial_size
     return q, size <= RESIDUAL_TOLERANCE

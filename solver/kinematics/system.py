@@ -89,6 +89,7 @@ class System:
         index[GROUND] = self.B
         self.length = mechanism.length_scale()
         self._scratch: dict = {}
+        self._kept = None  # poses and rates of the last gamma call, for eta(after_gamma=True)
 
         entries = [(j.name, j.resolve(mechanism)) for j in mechanism.joints.values()]
         drivers = list(mechanism.drivers.values())
@@ -212,6 +213,7 @@ class System:
 
     def residual(self, q: np.ndarray, drive: np.ndarray) -> np.ndarray:
         """Φ (m, N) at coordinates q (n, N) with driver values `drive` from `drive()`."""
+        self._kept = None
         arrays = self._poses(q)
         out = np.empty((self.m, q.shape[1]))
         for g in self.groups:
@@ -221,6 +223,7 @@ class System:
 
     def residual_jacobian(self, q: np.ndarray, drive: np.ndarray):
         """Φ (m, N) and Φq as a compact `Jacobian` at q (n, N)."""
+        self._kept = None
         arrays = self._poses(q)
         N = q.shape[1]
         res = np.empty((self.m, N))
@@ -253,19 +256,35 @@ class System:
         """γ (m, N) at q, q' (n, N); Φq q'' = γ."""
         arrays, rates = self._poses(q), self._rates(dq)
         out = np.empty((self.m, q.shape[1]))
+        kept = []
         for g in self.groups:
-            self._scatter(out, g, g.kind.gamma(g.par, self._slot_poses(g, arrays), self._slot_rates(g, rates)))
+            poses, speeds = self._slot_poses(g, arrays), self._slot_rates(g, rates)
+            self._scatter(out, g, g.kind.gamma(g.par, poses, speeds))
+            kept.append((poses, speeds))
+        self._kept = kept
         out[self.first_driver_row :] += drive[2]
         return out
 
-    def eta(self, q, dq, ddq, drive) -> np.ndarray:
-        """η (m, N) at q, q', q'' (n, N); Φq q''' = η."""
-        arrays, rates, accels = self._poses(q), self._rates(dq), self._rates(ddq, "accels")
+    def eta(self, q, dq, ddq, drive, after_gamma: bool = False) -> np.ndarray:
+        """η (m, N) at q, q', q'' (n, N), so that Φq times the third derivative of q is η.
+
+        With `after_gamma`, the poses and rates gathered by the `gamma` call
+        just before (which must have had the same q and first derivative) are
+        used again, rotations included.
+        """
+        kept = self._kept if after_gamma else None
+        if kept is None:
+            arrays, rates = self._poses(q), self._rates(dq)
+        accels = self._rates(ddq, "accels")
         out = np.empty((self.m, q.shape[1]))
-        for g in self.groups:
-            poses = self._slot_poses(g, arrays)
-            vals = g.kind.eta(g.par, poses, self._slot_rates(g, rates), self._slot_rates(g, accels, "accels"))
+        for i, g in enumerate(self.groups):
+            if kept is None:
+                poses, speeds = self._slot_poses(g, arrays), self._slot_rates(g, rates)
+            else:
+                poses, speeds = kept[i]
+            vals = g.kind.eta(g.par, poses, speeds, self._slot_rates(g, accels, "accels"))
             self._scatter(out, g, vals)
+        self._kept = None
         out[self.first_driver_row :] += drive[3]
         return out
 
