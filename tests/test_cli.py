@@ -52,6 +52,8 @@ def test_check_human_output_names_verdicts_in_words(capsys):
     assert code == 1
     assert "OVER" in out and "within" in out and "max speed within limits" in out
     assert "machinery-safety" in out
+    # units survive rendering (square brackets are not taken for markup)
+    assert "velocity [mm/s]" in out and "at [deg]" in out
 
 
 def test_table_csv(capsys):

@@ -133,7 +133,7 @@ def test_bad_input_gives_one_clear_message(tmp_path, capsys, edit, words):
 
 def test_missing_file_exit_2_without_traceback(tmp_path):
     result = subprocess.run(
-        [sys.executable, "-m", "workbench.cli", "check", str(tmp_path / "nope.toml")],
+        [sys.executable, "-m", "workbench", "check", str(tmp_path / "nope.toml")],
         capture_output=True, text=True,
     )
     assert result.returncode == 2

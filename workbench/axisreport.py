@@ -103,7 +103,7 @@ def axis_table(report: AxisReport) -> Group:
     table = Table(title=title, title_justify="left", expand=False)
     table.add_column("peak")
     table.add_column("value", justify="right")
-    table.add_column("at [deg]", justify="right")
+    table.add_column(Text("at [deg]"), justify="right")
     table.add_column("limit", justify="right")
     table.add_column("used", justify="right")
     table.add_column("verdict")
@@ -112,7 +112,7 @@ def axis_table(report: AxisReport) -> Group:
         value = "infinite" if p.infinite else fmt(p.value)
         check = limits.get(q)
         table.add_row(
-            f"{q} [{unit}{POWER[q]}]",
+            Text(f"{q} [{unit}{POWER[q]}]"),  # Text: brackets are not markup
             value,
             fmt(_at(p.at), 5) if p.at else "0",
             fmt(check.limit) if check else "—",

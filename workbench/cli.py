@@ -214,6 +214,3 @@ def main(argv: list[str] | None = None) -> int:
 
 
 from . import profilecmd  # noqa: E402,F401  (registers `camwright profile`)
-
-if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
