@@ -1,4 +1,4 @@
-"""Planar kinematics of linkages: model, constraint kinds, drivers and the cycle solver.
+"""Planar kinematics of linkages: model, constraint kinds, drivers, the cycle solver, outputs and peaks.
 
 Plain Python objects and numpy arrays in and out; SI units (m, rad, s);
 master angle θ in rad.  See README.md beside this file for the API.
@@ -6,17 +6,27 @@ master angle θ in rad.  See README.md beside this file for the API.
 
 from .base import Binding, Constraint, Coordinate
 from .coordinates import BodyAngle, JointCoordinate, PointX, PointY, RelativeAngle, SliderStroke
+from .cycle import INSTANTS, mobility, solve_cycle
+from .dof import DofReport, Motion
 from .errors import ModelError
 from .fixed import Fixed
 from .model import GROUND, Body, Driver, Mechanism
 from .motion import DEG, MM, ConstantSpeed, ProgramMotion
+from .outputs import OutputCurve
+from .peaks import OutputPeaks, check_limits, max_speed, output_peaks
 from .prismatic import Prismatic
+from .result import DEAD_POINT, NOT_ASSEMBLED, NOT_DRIVEN, SOLVED, CycleResult, DeadPoint
 from .revolute import Revolute
 from .system import System
+from .transmission import TransmissionAngle
 
 __all__ = [
     "Binding", "Constraint", "Coordinate",
     "BodyAngle", "JointCoordinate", "PointX", "PointY", "RelativeAngle", "SliderStroke",
+    "INSTANTS", "mobility", "solve_cycle", "DofReport", "Motion",
     "ModelError", "Fixed", "GROUND", "Body", "Driver", "Mechanism",
-    "DEG", "MM", "ConstantSpeed", "ProgramMotion", "Prismatic", "Revolute", "System",
+    "DEG", "MM", "ConstantSpeed", "ProgramMotion", "OutputCurve",
+    "OutputPeaks", "check_limits", "max_speed", "output_peaks",
+    "Prismatic", "DEAD_POINT", "NOT_ASSEMBLED", "NOT_DRIVEN", "SOLVED", "CycleResult", "DeadPoint",
+    "Revolute", "System", "TransmissionAngle",
 ]

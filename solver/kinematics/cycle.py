@@ -141,9 +141,12 @@ class CycleSolver:
         link_ok = branch_defect(
             system, solved.q[:, :-1], dq[:, :-1], ddq[:, :-1], solved.q[:, 1:], dq[:, 1:], ddq[:, 1:], np.diff(points)
         ) <= BRANCH_TOLERANCE
-        # a gap is good when its points, its end point and the links between them all pass
+        # a point is good when it passes and so do the links on both sides; a gap when all its points are
+        good = ok.copy()
+        good[:-1] &= link_ok
+        good[1:] &= link_ok
         good_gap = np.ones(len(nodes) - 1, dtype=bool)
-        np.logical_and.at(good_gap, gap[:-1], ok[:-1] & ok[1:] & link_ok)
+        np.logical_and.at(good_gap, gap[:-1], good[:-1] & good[1:])
         fresh = self._states(points, solved.q, dq, ddq, start)
         if good_gap.all():
             return fresh, None
@@ -153,7 +156,7 @@ class CycleSolver:
             if good_gap[k]:
                 out.extend(fresh[first[k] : first[k + 1]])
                 continue
-            begin = fresh[first[k]] if ok[first[k]] else nodes[k]
+            begin = fresh[first[k]] if good[first[k]] else self._resolved(nodes[k])
             out.append(begin)
             step = (theta[k + 1] - theta[k]) / parts[k]
             marched, stop = march(system, begin, [float(theta[k + 1])], step, record=True)
@@ -163,8 +166,13 @@ class CycleSolver:
                     out.append(stop.state)
                 return out, stop
             out.extend(marched[:-1])  # its last state is node k + 1, taken from the batch or marched next
-        out.append(fresh[-1] if ok[-1] else nodes[-1])
+        out.append(fresh[-1] if good[-1] else self._resolved(nodes[-1]))
         return out, None
+
+    def _resolved(self, node: State) -> State:
+        """A marched node solved again to full tolerance (it was solved to the guide tolerance)."""
+        state, _ = solve_instant(self.system, node.theta, node.q)
+        return state if state is not None else node
 
     @staticmethod
     def _states(theta, q, dq, ddq, start) -> list[State]:
@@ -225,10 +233,10 @@ class CycleSolver:
                 return q, dq, ddq, dddq, None, 0
         else:
             state = self._state(fine, q, dq, ddq, i - 1)
-        # march instant by instant over the stretch, then hand back to the batch
-        span = max(1, int(round(COARSE_STEP / max(fine[1] - fine[0], 1e-12)))) if fine.size > 1 else 1
+        # march instant by instant over about one node spacing, then hand back to the checks
+        span = max(1, int(round(NODE_SPACING / max(fine[1] - fine[0], 1e-12)))) if fine.size > 1 else 1
         last = min(fine.size, i + span)
-        states, stop = march(system, state, list(fine[i:last]), max_step=COARSE_STEP)
+        states, stop = march(system, state, list(fine[i:last]), max_step=NODE_SPACING)
         good = i + len(states)
         for k, s in enumerate(states):
             q[:, i + k], dq[:, i + k], ddq[:, i + k] = s.q, s.dq, s.ddq
@@ -255,3 +263,15 @@ class CycleSolver:
         _, _, Vt = np.linalg.svd(jac)
         motion = describe_motion(system, q, Vt[-1] * system.col_scale)
         return DeadPoint(stop.reason, float(stop.state.theta), float(stop.failed), motion.joints, motion.bodies, float(stop.state.condition))
+
+
+def mobility(mechanism, theta: float = 0.0):
+    """Assemble `mechanism` at master angle θ (rad) and report its degrees of freedom.
+
+    Returns (DofReport, q) with q (n,) the assembled coordinates, or None in
+    place of q when no configuration near the rough one satisfies the
+    constraints.  Cheap enough to call on every edit.
+    """
+    system = System(mechanism)
+    q, assembled = assemble(system, system.initial_guess(), float(theta))
+    return analyse_dof(system, q), (q if assembled else None)

@@ -113,3 +113,16 @@ class CycleResult:
         from .outputs import evaluate_output
 
         return evaluate_output(self, output)
+
+    def point(self, body: str, point: str) -> np.ndarray:
+        """Machine coordinates (N, 2) in m of a named point over the solved instants (for drawing)."""
+        from .coordinates import PointX, PointY
+
+        x = self.output(PointX((body, point))).value
+        y = self.output(PointY((body, point))).value
+        return np.column_stack([x, y])
+
+    def body(self, name: str) -> np.ndarray:
+        """(N, 3) x (m), y (m), φ (rad) of a moving body over the solved instants."""
+        k = self.coordinates.index(f"{name}.x")
+        return self.q[:, k : k + 3]
