@@ -63,12 +63,6 @@ def dot(ax, ay, bx, by) -> np.ndarray:
     return ax * bx + ay * by
 
 
-def second_free(ax, ay, w):
-    """The part of (A s')'' free of φ'': −a φ'²."""
-    w2 = w * w
-    return -ax * w2, -ay * w2
-
-
 def third_free(ax, ay, w, al):
     """The part of (A s')''' free of φ''': −3 a φ' φ'' − perp(a) φ'³."""
     w3 = w * w * w

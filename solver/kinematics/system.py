@@ -4,8 +4,9 @@ The coordinates q of the B moving bodies are ordered body by body,
 (x, y, φ) each, so column 3b + c of Φq belongs to body b.  Rows come joint
 by joint, then driver by driver; instances of one kind are evaluated
 together.  Arrays keep the instants last: q is (n, N), Φ is (m, N), Φq is
-(m, n, N), so that every elementwise operation runs over contiguous
-instants.  Derivatives are w.r.t. master angle θ (rad); a driver holding
+(m, n, N) dense or, for the batched factorization, a compact `Jacobian`
+holding only the entries that can be non-zero, so that every elementwise
+operation runs over contiguous instants.  Derivatives are w.r.t. master angle θ (rad); a driver holding
 coordinate g(q) to motion d(θ) contributes Φ = g(q) − d(θ), so that
 Φq q' = d', and d'', d''' add to its γ, η.
 
@@ -41,14 +42,11 @@ class Group:
     cols: np.ndarray  # (3·slots, k) column of each partial derivative (ground: dummy columns)
     variable: list[tuple[int, int]] = field(default_factory=list)  # (row, col) entries that vary
     var_slots: np.ndarray | None = None  # compact-Jacobian slot of each varying entry, instance-major per entry
-
-    @property
-    def flat_rows(self) -> np.ndarray:
-        return self.rows.ravel()
+    flat_rows: np.ndarray | None = None  # rows.ravel(): where a kind's stacked rows go
 
 
 class Jacobian:
-    """Φq at N instants in compact form: one row of `values` (slots + 1, N) per entry that can be non-zero.
+    """Φq at N instants in compact form: one row of `values` (slots + 2, N) per entry that can be non-zero.
 
     Row `slots` is always zero (it stands for every structural zero) and
     row `slots + 1` takes the partials w.r.t. the ground, which has no
@@ -108,7 +106,6 @@ class System:
             by_kind.setdefault(type(item), []).append((name, item, binding, rows))
         self.m = len(self.row_names)
         self.first_driver_row = self.m - len(drivers)  # driver rows come last
-        self.driver_rows = np.arange(self.first_driver_row, self.m)
         self.groups = [self._group(kind, items, index) for kind, items in by_kind.items()]
 
         self.row_scale = np.array([1.0 / self.length if u == LENGTH else 1.0 for u in self.row_units])
@@ -129,7 +126,7 @@ class System:
         rows = np.array([r for _, _, _, r in items]).T
         cols = np.concatenate([SLOT_COLUMNS * slots[t][None] + np.arange(SLOT_COLUMNS)[:, None] for t in range(len(slots))])
         par = stack_params(bindings)
-        return Group(kind, [n for n, _, _, _ in items], par, slots, rows, cols)
+        return Group(kind, [n for n, _, _, _ in items], par, slots, rows, cols, flat_rows=rows.ravel())
 
     def _fill_constants(self, g: Group) -> None:
         """Store constant Φq entries once; remember which entries vary."""
@@ -333,7 +330,6 @@ class System:
         self.slot_entries = flat  # flat (row·n + col) index of each slot
         zero, ground = self.slots, self.slots + 1  # the always-zero row; the row for partials w.r.t. the ground
         slot_of[slot_of < 0] = zero
-        self._slot_of = slot_of
         varying = np.zeros(self.slots + 2, dtype=bool)
         for g in self.groups:
             if g.variable:
