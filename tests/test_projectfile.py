@@ -177,3 +177,44 @@ def test_float_text_is_short_and_exact():
         assert float(_float(v)) == v
 
     exact()
+
+
+def test_saving_an_edited_file_keeps_its_comments_and_changes_only_what_changed(tmp_path):
+    from dataclasses import replace
+
+    from motionlaws import Segment
+
+    source = preset_path("tray-lidder").read_text()
+    target = tmp_path / "lidder.toml"
+    target.write_text(source)
+    project = load_project(target)
+    lid = project.axes[0]
+    segs = list(lid.segments)
+    segs[0] = replace(segs[0], span=100.0)
+    segs[1] = replace(segs[1], span=140.0)
+    project.axes[0] = replace(lid, segments=tuple(segs))
+    pusher = project.axes[1]
+    project.axes[1] = replace(pusher, segments=pusher.segments[:2] + (Segment("dwell", 30.0), Segment("dwell", 30.0)) + pusher.segments[3:])
+    save_project(project)
+    text = target.read_text()
+    # every comment line of the original survives
+    for line in source.splitlines():
+        if line.lstrip().startswith("#"):
+            assert line in text
+    assert "jerk = 7.0e5" in text  # untouched values keep their own spelling
+    again = load_project(target)
+    assert again.axes == project.axes and again.machine == project.machine
+    # and the changed lines are the only ones that differ for the first axis
+    import difflib
+
+    changed = [l for l in difflib.ndiff(source.splitlines(), text.splitlines()) if l[:1] in "+-"]
+    assert "- span = 90.0" in changed and "+ span = 100.0" in changed
+
+
+def test_merge_falls_back_to_canonical_layout_when_it_cannot_be_exact(monkeypatch):
+    import workbench.projectfile as pf
+
+    project = loads_project(GOOD, "x.toml")
+    monkeypatch.setattr(pf, "merge_text", lambda original, data: None)
+    text = pf.dumps(project)
+    assert "[[axis.segment]]" in text and loads_project(text, "y.toml").axes == project.axes

@@ -30,6 +30,7 @@ from motionlaws import (
 )
 
 from .tomlcheck import ProjectError, Table
+from .tomlmerge import merge_text
 from .tomlwrite import dumps as toml_dumps
 
 FILE_VERSION = 1
@@ -66,6 +67,7 @@ class Project:
     programs: dict[str, Program] = field(default_factory=dict)
     parts: dict[str, Any] = field(default_factory=dict)
     path: Path | None = None
+    source_text: str | None = None  # the text it was loaded from: saves keep its comments
 
     def axis(self, name: str) -> Axis:
         for axis in self.axes:
@@ -193,6 +195,7 @@ def loads_project(text: str, file=None) -> Project:
         raise ProjectError(file, None, None, f"is not valid TOML: {exc}") from None
     project = parse_project(data, file)
     project.path = Path(file) if file is not None else None
+    project.source_text = text
     return project
 
 
@@ -242,8 +245,14 @@ def project_data(project: Project) -> dict:
 
 
 def dumps(project: Project) -> str:
-    """The project file text (canonical layout, comments not kept)."""
-    return toml_dumps(project_data(project))
+    """The project file text: the loaded file's own text with only what changed
+    changed (comments and layout kept), or the canonical layout for a new file."""
+    data = project_data(project)
+    if project.source_text is not None:
+        merged = merge_text(project.source_text, data)
+        if merged is not None:
+            return merged
+    return toml_dumps(data)
 
 
 def write_atomic(path, text: str) -> None:
@@ -271,8 +280,10 @@ def write_atomic(path, text: str) -> None:
 def save_project(project: Project, path=None) -> Path:
     """Save atomically to `path` (default: where it was loaded from)."""
     path = Path(path or project.path)
-    write_atomic(path, dumps(project))
+    text = dumps(project)
+    write_atomic(path, text)
     project.path = path
+    project.source_text = text
     return path
 
 

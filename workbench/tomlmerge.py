@@ -1,0 +1,81 @@
+"""Saving over a hand-written file without losing its comments and layout.
+
+Project files live in git and carry comments.  `merge_text` takes the text
+the project was loaded from and the new project data, and changes only what
+changed: values that are equal stay as written (with their comments and
+number format), changed values are replaced in place, removed keys and
+tables go, new ones are appended.  The result is verified by parsing it
+back; if it does not give exactly the new data, the caller falls back to
+the canonical layout (`tomlwrite.dumps`), so a merge can never save wrong
+numbers.
+"""
+
+from __future__ import annotations
+
+import tomllib
+
+import tomlkit
+from tomlkit.items import AoT, Table, InlineTable
+
+from .tomlwrite import INLINE_KEYS
+
+
+def _is_table_array(value) -> bool:
+    return isinstance(value, list) and bool(value) and all(isinstance(x, dict) for x in value)
+
+
+def _new_item(key, value):
+    if isinstance(value, dict):
+        if key in INLINE_KEYS:
+            item = tomlkit.inline_table()
+            item.update(value)
+            return item
+        table = tomlkit.table()
+        _merge(table, value)
+        table.add(tomlkit.nl())  # a blank line before whatever follows
+        return table
+    if _is_table_array(value):
+        aot = tomlkit.aot()
+        for entry in value:
+            aot.append(_new_item(None, entry))
+        return aot
+    return value
+
+
+def _merge(container, new: dict) -> None:
+    for key in [k for k in container.keys() if k not in new]:
+        del container[key]
+    for key, value in new.items():
+        if key not in container:
+            container[key] = _new_item(key, value)
+            continue
+        old = container[key]
+        if isinstance(value, dict) and isinstance(old, (Table, InlineTable, dict)):
+            _merge(old, value)
+        elif _is_table_array(value) and isinstance(old, AoT):
+            for i, entry in enumerate(value):
+                if i < len(old):
+                    _merge(old[i], entry)
+                else:
+                    old.append(_new_item(None, entry))
+            while len(old) > len(value):
+                del old[len(old) - 1]
+        elif _plain(old) != value or type(_plain(old)) is bool and type(value) is not bool:
+            container[key] = _new_item(key, value)
+
+
+def _plain(item):
+    return item.unwrap() if hasattr(item, "unwrap") else item
+
+
+def merge_text(original: str, new: dict) -> str | None:
+    """`original` edited to hold `new`, or None when that cannot be done exactly."""
+    try:
+        doc = tomlkit.parse(original)
+        _merge(doc, new)
+        text = tomlkit.dumps(doc)
+        if tomllib.loads(text) == new:
+            return text
+    except Exception:  # noqa: BLE001 - any failure means: use the canonical layout
+        return None
+    return None
