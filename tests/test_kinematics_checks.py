@@ -93,3 +93,11 @@ def test_solver_loads_no_user_interface_code():
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == ""
+
+
+@pytest.mark.parametrize("theta", [np.array([0.0]), np.linspace(1.0, 2.0, 7), np.linspace(-2.0, -1.0, 7)])
+def test_instants_away_from_the_drawing_stay_on_the_drawn_branch(theta):
+    """Rough coordinates show master angle 0: the solver follows that branch to the first instant, either way."""
+    result = solve_cycle(four_bar(A, B, C, D, START), 60.0, theta=theta)
+    assert result.theta.size == theta.size
+    assert_open_branch(result)

@@ -52,11 +52,13 @@ NODE_SPACING = math.radians(2.0)  # from nodes this close the quintic Hermite gu
 SCREEN_CONDITION = DEAD_POINT_CONDITION * 1e-3  # pivot estimate above this sends an instant to the exact check
 
 
-def solve_cycle(mechanism, speed: float, instants: int = INSTANTS, theta=None) -> CycleResult:
+def solve_cycle(mechanism, speed: float, instants: int = INSTANTS, theta=None, drawn_at: float = 0.0) -> CycleResult:
     """Solve `mechanism` at `instants` equally spaced master angles over one cycle (or at `theta`, rad, increasing).
 
     `speed` is the machine speed in cycles/min; it only scales the time
-    derivatives the result reports.
+    derivatives the result reports.  The bodies' rough coordinates show the
+    linkage at master angle `drawn_at` (rad): it is assembled there and
+    followed to the first instant.
     """
     system = System(mechanism)
     if theta is None:
@@ -64,7 +66,7 @@ def solve_cycle(mechanism, speed: float, instants: int = INSTANTS, theta=None) -
     theta = np.asarray(theta, dtype=float)
     if theta.ndim != 1 or theta.size == 0 or np.any(np.diff(theta) <= 0.0) or not np.all(np.isfinite(theta)):
         raise ValueError("theta must be a non-empty, strictly increasing array of finite master angles (rad)")
-    return CycleSolver(system).solve(theta, float(speed))
+    return CycleSolver(system).solve(theta, float(speed), float(drawn_at))
 
 
 class CycleSolver:
@@ -82,26 +84,32 @@ class CycleSolver:
             speed, requested, dof, dead, self.system,
         )
 
-    def solve(self, theta: np.ndarray, speed: float) -> CycleResult:
+    def solve(self, theta: np.ndarray, speed: float, drawn_at: float = 0.0) -> CycleResult:
         system = self.system
         requested = theta.size
-        q0, assembled = assemble(system, system.initial_guess(), float(theta[0]))
+        q0, assembled = assemble(system, system.initial_guess(), drawn_at)
         dof = analyse_dof(system, q0)
         if not dof.driven:
             return self._result(NOT_DRIVEN, dof.message, theta[:0], None, speed, requested, dof)
         if not assembled:
             message = (
-                f"the linkage cannot be assembled at master {math.degrees(theta[0]):.4f}° near the rough"
+                f"the linkage cannot be assembled at master {math.degrees(drawn_at):.4f}° near the rough"
                 " coordinates: check dimensions, points and the drivers' start values"
             )
             return self._result(NOT_ASSEMBLED, message, theta[:0], None, speed, requested, dof)
-        start, reason = solve_instant(system, float(theta[0]), q0)
+        start, reason = solve_instant(system, drawn_at, q0)
         if reason:
-            dead = self._dead_point(Stop(reason, start, float(theta[0])))
+            dead = self._dead_point(Stop(reason, start, drawn_at))
             return self._result(DEAD_POINT, dead.message, theta[:0], None, speed, requested, dof, dead)
+        if theta[0] != drawn_at:  # follow the drawn branch to the first instant
+            lead, stop = march(system, start, [float(theta[0])])
+            if stop is not None:
+                dead = self._dead_point(stop)
+                return self._result(DEAD_POINT, dead.message, theta[:0], None, speed, requested, dof, dead)
+            start = lead[-1]
 
         nodes, stop = march(system, start, [float(theta[-1])], COARSE_STEP, record=True, tolerance=GUIDE_TOLERANCE)
-        nodes = [start] + nodes
+        nodes = [start] + [s for s in nodes if s.theta > start.theta]
         if stop is not None:
             nodes.append(stop.state) if stop.state.theta > nodes[-1].theta else None
         nodes, stop_dense = self._densify(nodes, start)
@@ -124,6 +132,8 @@ class CycleSolver:
         """Fill the gaps between marched states with nodes at most NODE_SPACING apart, and solve
         all of them (the marched ones again, to full tolerance) at once."""
         system = self.system
+        if len(nodes) == 1:
+            return nodes, None
         theta = np.array([s.theta for s in nodes])
         parts = np.maximum(1, np.ceil(np.diff(theta) / NODE_SPACING - 1e-9).astype(int))
         offset = np.concatenate([np.arange(p) / p for p in parts] + [np.zeros(1)])

@@ -114,23 +114,25 @@ def march(
     system, start: State, targets, max_step: float = COARSE_STEP, record: bool = False,
     tolerance: float = POSITION_TOLERANCE,
 ):
-    """States at each master angle of `targets` (increasing, after start.theta), and a `Stop` or None.
+    """States at each master angle of `targets`, and a `Stop` or None.
 
-    With `record`, every accepted step's state is returned, not only those
-    at the targets (the continuation nodes of a cycle).  `tolerance` is the
-    Newton tolerance of each step (newton.GUIDE_TOLERANCE for states that
-    only guide later solves).
+    `targets` run monotonically away from start.theta, forwards or
+    backwards.  With `record`, every accepted step's state is returned, not
+    only those at the targets (the continuation nodes of a cycle).
+    `tolerance` is the Newton tolerance of each step (newton.GUIDE_TOLERANCE
+    for states that only guide later solves).
     """
     state = start
     h = max_step
     out: list[State] = []
     seen: set[str] = set()  # reasons met since the last accepted step
     for target in targets:
-        while state.theta < target:
-            remaining = target - state.theta
+        direction = 1.0 if target >= state.theta else -1.0
+        while direction * (target - state.theta) > 0.0:
+            remaining = direction * (target - state.theta)
             last = remaining <= LAST_STEP_STRETCH * h  # never leave a sliver of a step
             trial = remaining if last else h
-            new, reason = step(system, state, trial, target if last else None, tolerance)
+            new, reason = step(system, state, direction * trial, target if last else None, tolerance)
             if new is None:
                 seen.add(reason)
                 h = trial / 2.0
@@ -140,12 +142,12 @@ def march(
                         state.condition = condition_at(system, state.q)
                     if worst == JUMP and state.condition > NEAR_SINGULAR:
                         worst = SINGULAR  # the branches meet here: a dead point, not a stray jump
-                    return out, Stop(worst, state, state.theta + trial)
+                    return out, Stop(worst, state, state.theta + direction * trial)
                 continue
             seen.clear()
             state = new
             h = min(max_step, trial * GROWTH)
-            if record and state.theta < target:
+            if record and direction * (target - state.theta) > 0.0:
                 out.append(state)
         out.append(state)
     return out, None

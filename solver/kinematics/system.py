@@ -50,7 +50,9 @@ class Jacobian:
 
     Row `slots` is always zero (it stands for every structural zero) and
     row `slots + 1` takes the partials w.r.t. the ground, which has no
-    coordinates.  `dense()` gives the full (m, n, N) array.
+    coordinates.  `dense()` gives the full (m, n, N) array.  The values live
+    in a buffer of the System that the next evaluation overwrites: factor
+    (or copy) them at once, as `linalg.factor` does.
     """
 
     __slots__ = ("values", "system")
@@ -224,7 +226,7 @@ class System:
         arrays = self._poses(q)
         N = q.shape[1]
         res = np.empty((self.m, N))
-        values = np.empty((self.slots + 2, N))
+        values = self._buffer("jacobian", (self.slots + 2, N))  # valid until the next evaluation
         values[self._fixed_slots] = self._fixed_values
         for g in self.groups:
             poses = self._slot_poses(g, arrays)
