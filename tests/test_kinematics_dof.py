@@ -1,7 +1,7 @@
 """Degrees of freedom from the rank of Φq (DESIGN §4: DOF = coordinates − rank).
 
 A planar four-bar has mobility 1 by the Gruebler–Kutzbach count
-M = 3(n − 1) − 2 j1 = 3·3 − 2·4 = 1 (Norton, Design of Machinery, ch. 2);
+M = 3(n − 1) − 2 j1 = 3·3 − 2·4 = 1 (Norton, Design of Machinery, ch. 2; from memory);
 one driver makes it kinematically driven, a second over-constrains it.
 """
 

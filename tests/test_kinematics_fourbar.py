@@ -103,7 +103,7 @@ def test_transmission_angle_matches_norton(branch):
 
 
 def grashof(links):
-    """Grashof (1883, as in Norton ch. 2): s + l < p + q lets the shortest link turn fully."""
+    """Grashof (1883, as in Norton ch. 2; from memory): s + l < p + q lets the shortest link turn fully."""
     s, p, q, l = sorted(links)
     return s + l < p + q
 

@@ -2,8 +2,8 @@
 
 Geometry (tests/test_kinematics_support.slider_crank): crank a turning about
 the origin, rod b, slider pin B on the line y = c.  With φ3 the rod angle
-(A to B), R. L. Norton, Design of Machinery (offset slider-crank: position
-§4.6, velocity §6.7, acceleration §7.3; written here for this sign
+(A to B), R. L. Norton, Design of Machinery (offset slider-crank position,
+velocity and acceleration analysis, chs. 4, 6 and 7; written here for this sign
 convention, from memory) gives
 
     sin φ3 = (c − a sin θ2)/b,          x_B = a cos θ2 + b cos φ3
@@ -11,8 +11,8 @@ convention, from memory) gives
     α3 = (a ω2² sin θ2 − a α2 cos θ2 + b ω3² sin φ3)/(b cos φ3)
     a_B = −a α2 sin θ2 − a ω2² cos θ2 − b α3 sin φ3 − b ω3² cos φ3
 
-The jerk has no handbook form; sympy differentiates the exact position
-x_B(θ2(t)) three times in time instead.
+The jerk has no handbook form; sympy differentiates the exact acceleration
+a_B(θ2(t)) once more in time instead.
 """
 
 from __future__ import annotations
@@ -46,11 +46,20 @@ def norton_slider(theta2, w2, al2):
 
 
 def sympy_slider_jerk():
-    """d³x_B/dt³ as a function of θ2, θ2', θ2'', θ2''' (sympy differentiates the exact position)."""
+    """d a_B/dt: sympy differentiates Norton's exact acceleration (module docstring) once more in time.
+
+    The crank angle is a function θ2(t), so ω2 = θ2' and α2 = θ2''; the jerk
+    comes out in θ2 and its first three time derivatives.
+    """
     t = sp.symbols("t")
     th = sp.Function("theta")(t)
-    x = A * sp.cos(th) + sp.sqrt(B**2 - (C - A * sp.sin(th)) ** 2)
-    jerk = sp.diff(x, t, 3)
+    w2, al2 = sp.diff(th, t), sp.diff(th, t, 2)
+    s3 = (C - A * sp.sin(th)) / B
+    c3 = sp.sqrt(1 - s3**2)
+    w3 = -A * w2 * sp.cos(th) / (B * c3)
+    al3 = (A * w2**2 * sp.sin(th) - A * al2 * sp.cos(th) + B * w3**2 * s3) / (B * c3)
+    acc = -A * al2 * sp.sin(th) - A * w2**2 * sp.cos(th) - B * al3 * s3 - B * w3**2 * c3
+    jerk = sp.diff(acc, t)
     d1, d2, d3, th0 = sp.symbols("d1 d2 d3 th0")
     jerk = jerk.subs(sp.Derivative(th, (t, 3)), d3).subs(sp.Derivative(th, (t, 2)), d2)
     jerk = jerk.subs(sp.Derivative(th, t), d1).subs(th, th0)

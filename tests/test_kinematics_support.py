@@ -66,7 +66,7 @@ def fourbar_closed_form(a, b, c, d, theta2, open_branch=True):
     """θ3, θ4 of a four-bar from Freudenstein's equation.
 
     F. Freudenstein (1955), in the half-angle form of R. L. Norton, Design of
-    Machinery, ch. 4 (eqs. 4.10-4.13, from memory): K1 = d/a, K2 = d/c,
+    Machinery, ch. 4 (from memory): K1 = d/a, K2 = d/c,
     K3 = (a² − b² + c² + d²)/(2ac), K4 = d/b, K5 = (c² − d² − a² − b²)/(2ab);
     θ4 = 2 atan2(−B ∓ √(B² − 4AC), 2A), θ3 = 2 atan2(−E ∓ √(E² − 4DF), 2D),
     the minus sign for the open branch.
