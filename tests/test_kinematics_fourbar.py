@@ -12,7 +12,6 @@ import math
 import numpy as np
 import pytest
 
-from solver.kinematics import JointCoordinate
 from solver.kinematics.cycle import solve_cycle
 from solver.kinematics.result import DEAD_POINT
 from solver.kinematics.transmission import TransmissionAngle

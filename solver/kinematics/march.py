@@ -14,8 +14,8 @@ the assembly branch it started on.  A step is accepted only if
    it by a share of order one).
 
 A rejected step is halved and retried; below MIN_STEP the march stops and
-reports why, with the last solved instant: the dead point lies within
-MIN_STEP after it.
+reports why, with the last solved instant: the dead point lies within a few
+MIN_STEP of it.  A march may run forwards or backwards in master angle.
 """
 
 from __future__ import annotations
@@ -34,7 +34,7 @@ DEAD_POINT_CONDITION = 1e8  # 1-norm condition of scaled Φq: beyond it position
 BRANCH_TOLERANCE = 1e-2  # on one branch the Euler–Maclaurin defect is O(h⁴) of the step; a jump makes it O(1)
 LAST_STEP_STRETCH = 1.5  # a remainder up to this many steps is taken in one, so no sliver is left
 NEAR_SINGULAR = 1e4  # condition beyond which a refused step is blamed on a dead point rather than a stray jump
-GROWTH = 2.0  # after an accepted short step, the next may be this much longer (up to the node spacing)
+GROWTH = 2.0  # after an accepted short step, the next may be this much longer (up to the longest step)
 
 LIMIT = "limit"  # Newton found no assembly: a limit position of the driven coordinate
 SINGULAR = "singular"  # Φq near singular at an instant
