@@ -34,6 +34,7 @@ from ..widgets.cam_verdicts import CamVerdicts, angle
 from . import register_view
 from .base import WorkbenchView
 
+CAM_ACTIONS = {"step", "go", "worst", "export", "cycle_cam"}  # keys that need a cam
 COARSE_STEP = 5.0  # deg per ← →
 FINE_STEP = 1.0  # deg per shift+← →
 PLOT_ROWS = (7, 13)  # least and most rows for the plots; a third of the view between them
@@ -45,17 +46,19 @@ WIDE_DRAWING = 40  # the drawing gives way to the bars only while it keeps this 
 STRAIGHT = 1e6  # mm: a radius beyond this is shown as straight
 LIFT_AT_REST = 1e-9  # |ds/dθ| below this (axis unit per rad) counts as at rest
 
-EXAMPLE = '''\
-[[cam]]
-name = "stamp-cam"            # unique among the cams
-axis = "{axis}"                # the axis whose motion the follower makes
-turning = "cw"                # "cw" or "ccw"
-
-[cam.follower]
-type = "translating-roller"   # mm axis: translating; deg axis: oscillating
-prime_radius = 60.0           # mm
-roller_radius = 12.0          # mm
-offset = 6.0                  # mm'''
+EXAMPLE = (  # (key = value, comment): the smallest useful [[cam]], from the README's Cams section
+    ("[[cam]]", ""),
+    ('name = "{name}"', "unique among the cams"),
+    ('axis = "{axis}"', "the axis whose motion the follower makes"),
+    ('turning = "cw"', '"cw" or "ccw"'),
+    ("", ""),
+    ("[cam.follower]", ""),
+    ('type = "translating-roller"', 'an axis in deg: "oscillating-roller"'),
+    ("prime_radius = 60.0", "mm"),
+    ("roller_radius = 12.0", "mm"),
+    ("offset = 6.0", "mm"),
+)
+COMMENT_COLUMN = 31  # where the example's comments start
 
 
 class CamBar(Static):
@@ -64,15 +67,24 @@ class CamBar(Static):
     DEFAULT_CSS = "CamBar { height: 1; padding: 0 1; }"
 
 
+def example_text(axis: str) -> str:
+    """The example [[cam]] table for an axis named `axis`, comments lined up."""
+    lines = []
+    for code, comment in EXAMPLE:
+        code = code.format(name=f"{axis}-cam", axis=axis)
+        lines.append(f"{code.ljust(COMMENT_COLUMN - 1)} # {comment}" if comment else code)
+    return "\n".join(lines)
+
+
 def no_cam_text(project: Project | None) -> Text:
     """What to say when the project has no [[cam]]: what a cam table is, with an example."""
     axis = next((a.name for a in project.axes if a.unit == "mm" and not a.index), None) if project else None
     text = Text()
     text.append("This project has no [[cam]] table.\n\n", style="bold")
-    text.append("A [[cam]] table turns an axis into a disk cam: the axis motion becomes the follower's\n"
+    text.append("A [[cam]] table turns an axis into a disk cam: the axis motion becomes the follower's "
                 "motion against cam angle. Add one to the file, for example:\n\n")
-    text.append(EXAMPLE.format(axis=axis or "an-axis-in-mm") + "\n\n", style="cyan")
-    text.append("then open the file again (ctrl+o). The README's Cams section lists every follower type,\n"
+    text.append(example_text(axis or "an-axis-in-mm") + "\n\n", style="cyan")
+    text.append("then open the file again (ctrl+o). The README's Cams section lists every follower type, "
                 "[cam.limits] and [cam.loads].", style="dim")
     return text
 
@@ -190,6 +202,7 @@ class CamView(WorkbenchView):
         if not has:
             self.query_one("#cam-empty-text", Static).update(no_cam_text(self.project))
         self.call_after_refresh(self._size_parts)
+        self.refresh_bindings()
 
     def on_resize(self) -> None:
         self._size_parts()
@@ -286,6 +299,12 @@ class CamView(WorkbenchView):
         self.query_one(CamDrawing).focus()
 
     # --- keys ---------------------------------------------------------------
+
+    def check_action(self, action: str, parameters) -> bool | None:
+        """Cam keys only where there is a cam (the footer then leaves them out)."""
+        if action in CAM_ACTIONS and not (self.project is not None and cam_specs(self.project)):
+            return False
+        return True
 
     def action_step(self, step: float) -> None:
         self.action_go(self.angle + step)

@@ -31,6 +31,7 @@ CURSOR_STYLE = "bold bright_white"
 LIMIT_STYLE = "red"  # limit lines; titles say "(red)" in words too
 WARN_LINE_STYLE = "yellow"  # a threshold that is not a limit (undercut, zero contact)
 ZERO_STYLE = "bright_black"
+TITLE_GAP = 2  # columns kept free after a title, so two plots' titles side by side stay apart
 PAD = 0.06  # share of the y range left free above and below the data
 RADIUS_CAP = 2.0  # the radius plot shows ± this many cam sizes; larger radii are near-flat anyway
 
@@ -145,7 +146,7 @@ class AnglePlot(MotionPlot):
         self.points_drawn = drawn
         if self.cursor is not None:
             self.add_v_line(self.cursor % 360.0, CURSOR_STYLE)
-        self.title = spec.fitted(self.size.width)
+        self.title = spec.fitted(self.size.width - TITLE_GAP)
         self.set_ylabel(escape(self.title))
 
     def _render_y_label(self) -> None:

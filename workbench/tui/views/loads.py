@@ -1,0 +1,293 @@
+"""The Loads view: what loads the drive over the cycle, with figures and the caution that goes with them.
+
+Each registered loads source (`widgets.loads_data`) gives items: for now the
+spring-closed cam followers (`[cam.loads]`, `widgets.loads_cam`) — contact
+force and camshaft torque against cam angle, and their figures.  Linkage
+drive torques come in through the same hook (`register_loads_source
+("linkage", …)` in `widgets/loads_linkage.py`); until then the view says so
+when the project has a linkage.  Items are computed in a worker from the
+project as edited.  Keys: `,` `.` pick the item, `←` `→` move the cursor.
+"""
+
+from __future__ import annotations
+
+import importlib
+import importlib.util
+
+from rich.table import Table
+from rich.text import Text
+from textual import on, work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, VerticalScroll
+from textual.message import Message
+from textual.widgets import Static
+from textual.worker import get_current_worker
+
+from ...projectfile import Project
+from ..format import OK_STYLE, OVER_STYLE, WARN_STYLE, degrees
+from ..widgets import loads_data
+from ..widgets.cam_plots import AnglePlot
+from ..widgets.loads_data import LoadsItem, collect_loads, unshown_parts
+from . import register_view
+from .base import WorkbenchView
+
+for _name in loads_data.SOURCE_MODULES:  # each registers its source on import
+    if importlib.util.find_spec(f"{loads_data.__package__}.{_name}") is not None:
+        importlib.import_module(f"{loads_data.__package__}.{_name}")
+
+PLOT_ROWS = (7, 13)  # least and most rows of the plots; a third of the view between them
+
+LOADS_EXAMPLE = """\
+[cam.loads]                    # under a [[cam]]: a spring-closed follower
+follower_mass = 2.4            # kg
+spring_rate = 8.0              # N/mm
+preload = 180.0                # N, on the base circle
+margin = 50.0                  # N, least contact force wanted"""
+
+
+class LoadsBar(Static):
+    """Which item, what it is, and its verdict, in one line."""
+
+    DEFAULT_CSS = "LoadsBar { height: 1; padding: 0 1; }"
+
+
+class FigureTable(Static):
+    """The figures of one item; `rows` keeps them as shown, for tests."""
+
+    DEFAULT_CSS = "FigureTable { height: auto; }"
+
+    def __init__(self, **kwargs):
+        super().__init__("", **kwargs)
+        self.rows: dict[str, dict] = {}
+        """Per figure ("what"): value, at, verdict as shown."""
+
+    def show(self, item: LoadsItem | None) -> None:
+        self.rows = {}
+        if item is None:
+            self.update("")
+            return
+        table = Table(box=None, padding=(0, 1, 0, 0), show_edge=False, expand=False, header_style="bold")
+        table.add_column("loads")
+        table.add_column("value", justify="right", no_wrap=True)
+        table.add_column("at", justify="right", no_wrap=True)
+        table.add_column("verdict")
+        for f in item.figures:
+            style = "" if f.ok is None else (OK_STYLE if f.ok else OVER_STYLE)
+            table.add_row(f.what, f.value, f.at, Text(f.verdict, style=style))
+            self.rows[f.what] = {"value": f.value, "at": f.at, "verdict": f.verdict}
+        self.update(table)
+
+
+def pending_lines(project: Project | None) -> list[Text]:
+    """One line per part whose loads are not shown here yet (a linkage before its source exists)."""
+    if project is None:
+        return []
+    return [Text(f"! This project has {n} [[{key}]] table{'s' if n > 1 else ''}: {what} is not shown "
+                 "in this view yet.", style=WARN_STYLE) for key, n, what in unshown_parts(project)]
+
+
+def nothing_text(project: Project | None) -> Text:
+    """What to say when there are no loads to show, and how to get some."""
+    text = Text()
+    text.append("No loads to show for this project.\n\n", style="bold")
+    text.append("A spring-closed cam follower gets its contact force, jump speed, spring preload and "
+                "camshaft torque here when its [[cam]] table has a [cam.loads] table, for example:\n\n")
+    text.append(LOADS_EXAMPLE + "\n\n", style="cyan")
+    text.append("then open the file again (ctrl+o). The README's Cams section lists every key.\n", style="dim")
+    for line in pending_lines(project):
+        text.append("\n")
+        text.append_text(line)
+    return text
+
+
+class LoadsView(WorkbenchView):
+    view_id = "loads"
+    title = "Loads"
+
+    DEFAULT_CSS = """
+    LoadsView { layout: vertical; }
+    #loads-plots { height: 9; }
+    #loads-plots AnglePlot { width: 1fr; }
+    #loads-body { height: 1fr; padding: 0 1; scrollbar-size-vertical: 1; }
+    #loads-body:focus { background: $boost; }
+    #loads-caution, #loads-readout, #loads-notes, #loads-pending { height: auto; }
+    #loads-empty { padding: 1 2; display: none; }
+    """
+
+    BINDINGS = [
+        Binding("right", "step(5)", "+5°", key_display="→", priority=True, tooltip="Cursor 5° later in the cycle"),
+        Binding("left", "step(-5)", "-5°", key_display="←", priority=True, tooltip="Cursor 5° earlier in the cycle"),
+        Binding("shift+right", "step(1)", "+1°", show=False, priority=True, tooltip="Cursor 1° later"),
+        Binding("shift+left", "step(-1)", "-1°", show=False, priority=True, tooltip="Cursor 1° earlier"),
+        Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Cursor to cam angle 0°"),
+        Binding("comma", "cycle(-1)", "Prev", key_display=",", show=False, tooltip="Show the previous loaded part"),
+        Binding("full_stop", "cycle(1)", "Next", key_display=".", show=False, tooltip="Show the next loaded part"),
+    ]
+
+    class Computed(Message):
+        """The worker has the loads of `project`."""
+
+        def __init__(self, project: Project, items: list[LoadsItem]) -> None:
+            super().__init__()
+            self.project = project
+            self.items = items
+
+        def can_replace(self, message: Message) -> bool:
+            return isinstance(message, LoadsView.Computed)
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.project: Project | None = None
+        self.items: list[LoadsItem] = []
+        """The items as last computed."""
+        self.items_for: Project | None = None
+        """The project the items belong to (one edit behind while the worker runs)."""
+        self.item_name: str | None = None
+        """The item on view."""
+        self.angle = 0.0
+        """Cursor cam angle, deg."""
+
+    def compose(self) -> ComposeResult:
+        yield LoadsBar(id="loads-bar")
+        with Horizontal(id="loads-plots"):
+            yield AnglePlot(id="loads-contact")
+            yield AnglePlot(id="loads-torque")
+        with VerticalScroll(id="loads-body"):
+            yield FigureTable(id="loads-figures")
+            yield Static(id="loads-caution")
+            yield Static(id="loads-readout")
+            yield Static(id="loads-notes")
+            yield Static(id="loads-pending")
+        with VerticalScroll(id="loads-empty"):
+            yield Static(id="loads-empty-text")
+
+    # --- state down ---------------------------------------------------------
+
+    def show_project(self, project: Project) -> None:
+        if project is self.project:
+            return
+        self.project = project
+        self._refresh_bar()
+        self.compute(project)
+
+    @work(thread=True, exclusive=True, group="loads-view", exit_on_error=False)
+    def compute(self, project: Project) -> None:
+        """The loads of `project` off the UI thread; a newer state cancels an older run."""
+        items = collect_loads(project)
+        if not get_current_worker().is_cancelled:
+            self.post_message(self.Computed(project, items))
+
+    @on(Computed)
+    def _computed(self, message: Computed) -> None:
+        if message.project is not self.project:
+            return
+        self.items, self.items_for = message.items, message.project
+        names = [i.name for i in self.items]
+        if self.item_name not in names:
+            self.item_name = names[0] if names else None
+        self._refresh_all()
+
+    @property
+    def item(self) -> LoadsItem | None:
+        return next((i for i in self.items if i.name == self.item_name), None)
+
+    def on_resize(self) -> None:
+        h = self.size.height
+        if h:
+            self.query_one("#loads-plots").styles.height = max(PLOT_ROWS[0], min(PLOT_ROWS[1], h // 3))
+        self._refresh_bar()
+
+    def _refresh_all(self) -> None:
+        has = bool(self.items)
+        for name in ("#loads-bar", "#loads-plots", "#loads-body"):
+            self.query_one(name).display = has
+        self.query_one("#loads-empty").display = not has
+        self.refresh_bindings()
+        if not has:
+            self.query_one("#loads-empty-text", Static).update(nothing_text(self.project))
+        item = self.item
+        self._refresh_bar()
+        plots = list(self.query(AnglePlot))
+        for k, plot in enumerate(plots):
+            spec = item.plots[k] if item is not None and k < len(item.plots) else None
+            plot.display = spec is not None
+            plot.show_spec(spec, self.angle)
+        self.query_one(FigureTable).show(item)
+        caution = Text(f"! {item.caution}", style=WARN_STYLE) if item is not None and item.caution else Text("")
+        self.query_one("#loads-caution", Static).update(caution)
+        notes = Text("\n".join(item.notes) if item is not None else "", style="dim")
+        self.query_one("#loads-notes", Static).update(notes)
+        pending = Text("\n").join(pending_lines(self.project))
+        self.query_one("#loads-pending", Static).update(pending)
+        self._refresh_readout()
+
+    def _refresh_readout(self) -> None:
+        item = self.item
+        text = Text()
+        if item is not None and item.readout is not None:
+            text.append(f"at cam angle {degrees(self.angle)}", style="bold")
+            text.append(" (← →): ", style="dim")
+            text.append(item.readout(self.angle))
+        self.query_one("#loads-readout", Static).update(text)
+
+    def _refresh_bar(self) -> None:
+        bar = self.query_one(LoadsBar)
+        names = [i.name for i in self.items]
+        item = self.item
+        if item is None:
+            bar.update(Text("(computing…)", style="dim") if self.items_for is not self.project else "")
+            return
+        text = Text(no_wrap=True, overflow="ellipsis")
+        text.append("loads of ", style="dim")
+        text.append(f"◂ {item.name} ▸", style="bold")
+        text.append(f" {names.index(item.name) + 1}/{len(names)}", style="dim")
+        text.append(" (, .)" if len(names) > 1 else "", style="dim")
+        text.append("  ")
+        style = "" if item.ok is None else (OK_STYLE if item.ok else OVER_STYLE)
+        text.append(item.verdict, style=style)
+        if self.items_for is not self.project:
+            text.append("  (computing…)", style="dim")
+        room = self.size.width - 2 - len(text.plain)
+        for piece in item.about:  # as many as fit whole
+            if len(piece) + 3 > room:
+                break
+            text.append(" · ", style="dim")
+            text.append(piece, style="dim")
+            room -= len(piece) + 3
+        bar.update(text, layout=False)
+
+    def focus_first(self) -> None:
+        self.query_one("#loads-body").focus()
+
+    # --- keys ---------------------------------------------------------------
+
+    def check_action(self, action: str, parameters) -> bool | None:
+        """Cursor and picker keys only while there is something to show."""
+        if action in ("step", "go", "cycle") and not self.items:
+            return False
+        return True
+
+    def action_step(self, step: float) -> None:
+        self.action_go(self.angle + step)
+
+    def action_go(self, angle: float) -> None:
+        self.angle = round(float(angle) % 360.0, 6) % 360.0
+        for plot in self.query(AnglePlot):
+            plot.set_cursor(self.angle)
+        self._refresh_readout()
+
+    def action_cycle(self, step: int) -> None:
+        names = [i.name for i in self.items]
+        if not names:
+            return
+        i = names.index(self.item_name) if self.item_name in names else 0
+        self.select_item(names[(i + step) % len(names)])
+
+    def select_item(self, name: str) -> None:
+        self.item_name = name
+        self._refresh_all()
+
+
+register_view(LoadsView)
+
