@@ -11,15 +11,23 @@ Printed beside:
 Targets: at least 50x faster than (a); within 10x of (b).  Measures and
 prints only.
 
-Run: .venv/bin/python benchmarks/bench_kinematics.py
+Timings are wall clock, best of many runs (the least disturbed: the machine
+is shared), with the median and the 90th percentile beside it to show the
+spread; minor page faults per solve (fresh memory the OS must map) and the
+time per solver stage (best of the runs) follow.
+
+Run: .venv/bin/python benchmarks/bench_kinematics.py [--quick] [--repeat N]
+     (--quick leaves out the slow scipy loop)
 """
 
 from __future__ import annotations
 
+import argparse
 import math
 import sys
 import time
 import timeit
+from contextlib import contextmanager
 from pathlib import Path
 
 import numpy as np
@@ -27,6 +35,7 @@ from scipy.optimize import root
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
+import solver.kinematics.cycle as cycle  # noqa: E402
 from solver.kinematics import ConstantSpeed, JointCoordinate, Mechanism, Prismatic, Revolute  # noqa: E402
 from solver.kinematics.cycle import solve_cycle  # noqa: E402
 from solver.kinematics.system import System  # noqa: E402
@@ -134,42 +143,125 @@ def naive_root_loop(mechanism, theta, q0):
     return out
 
 
-def best(fn, repeat=20, number=1) -> float:
-    """Best wall time of `repeat` runs of `number` calls, per call (s)."""
-    return min(timeit.repeat(fn, repeat=repeat, number=number)) / number
+def runs(fn, repeat=20, number=1, timer=time.perf_counter) -> np.ndarray:
+    """Times per call (s) of `repeat` runs of `number` calls each, sorted."""
+    return np.sort(np.array(timeit.repeat(fn, repeat=repeat, number=number, timer=timer)) / number)
 
 
-def best_cpu(fn, repeat=20, number=1) -> float:
-    """Best process CPU time per call (s): less sensitive to other work on a shared machine."""
-    return min(timeit.repeat(fn, repeat=repeat, number=number, timer=time.process_time)) / number
+def spread(times: np.ndarray) -> str:
+    """best, median and 90th percentile of sorted run times, in ms."""
+    return f"best {times[0] * 1e3:7.2f} ms  (median {np.median(times) * 1e3:6.2f}, p90 {np.quantile(times, 0.9) * 1e3:6.2f})"
+
+
+def page_faults(fn, repeat=5) -> float:
+    """Minor page faults per call (fresh memory pages the OS maps); NaN where not measurable."""
+    try:
+        import resource
+    except ImportError:  # not on this platform
+        return math.nan
+    fn()
+    before = resource.getrusage(resource.RUSAGE_SELF).ru_minflt
+    for _ in range(repeat):
+        fn()
+    return (resource.getrusage(resource.RUSAGE_SELF).ru_minflt - before) / repeat
+
+
+STAGES = (  # (label, owner, attribute) of the cycle solver's stages, timed where called from outside another stage
+    ("build System + plan", cycle, "System"),
+    ("assemble + dof", cycle, "assemble"),
+    ("assemble + dof", cycle, "analyse_dof"),
+    ("first instant", cycle, "solve_instant"),
+    ("march (coarse)", cycle, "march"),
+    ("nodes (batched level)", cycle.CycleSolver, "_densify"),
+    ("fine instants", cycle.CycleSolver, "_fine"),
+)
+
+
+@contextmanager
+def staged(totals: dict):
+    """Time the stages of STAGES into `totals` (label -> s) while inside the block."""
+    depth = [0]
+    saved = [(owner, name, getattr(owner, name)) for _, owner, name in STAGES]
+
+    def timed(label, fn):
+        def call(*args, **kwargs):
+            depth[0] += 1
+            start = time.perf_counter()
+            try:
+                return fn(*args, **kwargs)
+            finally:
+                depth[0] -= 1
+                if depth[0] == 0:
+                    totals[label] = totals.get(label, 0.0) + time.perf_counter() - start
+        return call
+
+    for (label, owner, name), (_, _, fn) in zip(STAGES, saved):
+        setattr(owner, name, timed(label, fn))
+    try:
+        yield
+    finally:
+        for owner, name, fn in saved:
+            setattr(owner, name, fn)
+
+
+def stage_times(model, repeat) -> dict:
+    """Best time (s) of each stage over `repeat` solves, and the rest of solve_cycle as "other"."""
+    best: dict = {}
+    for _ in range(repeat):
+        totals: dict = {}
+        with staged(totals):
+            start = time.perf_counter()
+            solve_cycle(model, SPEED, N)
+            totals["total"] = time.perf_counter() - start
+        totals["other"] = totals["total"] - sum(v for k, v in totals.items() if k != "total")
+        for k, v in totals.items():
+            best[k] = min(best.get(k, math.inf), v)
+    return best
 
 
 def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--quick", action="store_true", help="leave out the slow scipy root loop")
+    parser.add_argument("--repeat", type=int, default=40, help="runs per timing (best, median, p90 reported)")
+    args = parser.parse_args()
+    repeat = args.repeat
     theta = 2 * math.pi * np.arange(N) / N
     rows = []
     for name, build in (("four-bar", four_bar), ("six-bar", six_bar)):
         model = build()
         result = solve_cycle(model, SPEED, N)
         assert result.success, result.message
-        ours = best(lambda: solve_cycle(model, SPEED, N))  # best of 20: the least disturbed run
-        ours_cpu = best_cpu(lambda: solve_cycle(model, SPEED, N))
-        naive = best(lambda: naive_root_loop(model, theta, result.q[0]), repeat=1, number=1)
-        check = naive_root_loop(model, theta[:200], result.q[0])
-        agree = np.max(np.abs(check - result.q[:200]))
-        rows.append((name, ours, ours_cpu, naive, agree))
-    closed = best(lambda: four_bar_closed_form(theta), repeat=7, number=20)
-    closed_cpu = best_cpu(lambda: four_bar_closed_form(theta), repeat=7, number=20)
+        ours = runs(lambda: solve_cycle(model, SPEED, N), repeat=repeat)
+        ours_cpu = runs(lambda: solve_cycle(model, SPEED, N), repeat=repeat, timer=time.process_time)
+        faults = page_faults(lambda: solve_cycle(model, SPEED, N))
+        if args.quick:
+            naive, agree = math.nan, math.nan
+        else:
+            naive = runs(lambda: naive_root_loop(model, theta, result.q[0]), repeat=1)[0]
+            check = naive_root_loop(model, theta[:200], result.q[0])
+            agree = np.max(np.abs(check - result.q[:200]))
+        rows.append((name, ours, ours_cpu, faults, naive, agree, stage_times(model, max(5, repeat // 2))))
+    closed = runs(lambda: four_bar_closed_form(theta), repeat=max(7, repeat // 2), number=20)
+    closed_cpu = runs(lambda: four_bar_closed_form(theta), repeat=max(7, repeat // 2), number=20, timer=time.process_time)
     t3, t4, *_ = four_bar_closed_form(theta)
     four = solve_cycle(four_bar(), SPEED, N)
     err = np.max(np.abs(np.angle(np.exp(1j * (four.q[:, 8] - t4)))))
-    print(f"{N} instants per cycle, positions + velocities + accelerations + jerks")
-    for name, ours, ours_cpu, naive, agree in rows:
-        print(f"{name:9s} solver                     : {ours * 1e3:8.2f} ms   (CPU {ours_cpu * 1e3:.2f} ms)")
-        print(f"{name:9s} scipy root per instant (q) : {naive * 1e3:8.2f} ms   -> {naive / ours:6.1f}x faster (target >= 50x)"
-              f"   [max |dq| vs solver {agree:.1e}]")
-    print(f"four-bar  numpy closed form          : {closed * 1e3:8.2f} ms   (CPU {closed_cpu * 1e3:.2f} ms)"
-          f"   -> solver is {rows[0][1] / closed:5.1f}x of it, CPU {rows[0][2] / closed_cpu:.1f}x"
-          f" (target <= 10x)   [max |d theta4| {err:.1e} rad]")
+    print(f"{N} instants per cycle, positions + velocities + accelerations + jerks; {repeat} runs each")
+    for name, ours, ours_cpu, faults, naive, agree, _ in rows:
+        print(f"{name:9s} solver                     : {spread(ours)}   CPU best {ours_cpu[0] * 1e3:.2f} ms"
+              f"   page faults/solve {faults:.0f}")
+        if not args.quick:
+            print(f"{name:9s} scipy root per instant (q) : {naive * 1e3:8.2f} ms   -> {naive / ours[0]:6.1f}x faster"
+                  f" (target >= 50x)   [max |dq| vs solver {agree:.1e}]")
+    print(f"four-bar  numpy closed form          : {spread(closed)}   CPU best {closed_cpu[0] * 1e3:.2f} ms"
+          f"   [max |d theta4| {err:.1e} rad]")
+    four_ours, four_cpu = rows[0][1], rows[0][2]
+    print(f"four-bar  solver / closed form       : {four_ours[0] / closed[0]:5.1f}x best-to-best,"
+          f" {np.median(four_ours) / np.median(closed):5.1f}x median-to-median,"
+          f" CPU {four_cpu[0] / closed_cpu[0]:5.1f}x   (target <= 10x)")
+    for name, *_, stages in rows:
+        parts = ", ".join(f"{k} {v * 1e3:.2f}" for k, v in stages.items() if k != "total")
+        print(f"{name:9s} stages, best of each (ms)  : {parts}")
 
 
 if __name__ == "__main__":
