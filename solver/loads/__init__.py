@@ -1,4 +1,8 @@
-"""Loads on the drive from kinematics already computed: rigid-body estimates only."""
+"""Loads on the drive from kinematics already computed: rigid-body estimates only.
+
+Cam followers (follower.py) and linkages (linkage*.py: drive efforts and
+joint reactions by kinetostatics; servo.py: servo sizing).  See README.md.
+"""
 
 from .follower import (
     FollowerForces,
@@ -7,6 +11,10 @@ from .follower import (
     jump_speed,
     preload_for_margin,
 )
+from .linkage import DriveLoad, JointReaction, LinkageLoads, linkage_loads
+from .linkage_model import BodyMass, BodyTorque, LinkageLoading, LoadsError, PointForce
+from .linkage_power import drive_efforts_by_power, kinetic_energy
+from .servo import Gearing, ServoFigures, ServoLimits, ServoSizing, motor_curves, servo_sizing
 
 
 def scaled_motion(program, factor: float):
@@ -22,4 +30,8 @@ def scaled_motion(program, factor: float):
 __all__ = [
     "FollowerForces", "FollowerLoad", "follower_forces", "jump_speed",
     "preload_for_margin", "scaled_motion",
+    "DriveLoad", "JointReaction", "LinkageLoads", "linkage_loads",
+    "BodyMass", "BodyTorque", "LinkageLoading", "LoadsError", "PointForce",
+    "drive_efforts_by_power", "kinetic_energy",
+    "Gearing", "ServoFigures", "ServoLimits", "ServoSizing", "motor_curves", "servo_sizing",
 ]

@@ -1,0 +1,166 @@
+"""True peaks of load curves: a dense local re-solve around each sampled maximum, then a parabola.
+
+A load peak is the largest magnitude of a curve over the master angle, not
+the largest sample.  Around the best sampled instant (and any other sampled
+local maximum within PEAK_CANDIDATE of it) the linkage is solved again on
+LOCAL_POINTS master angles spanning the two neighbouring sample intervals
+(batched Newton from the quintic Hermite interpolation of the cycle's
+solutions, as the kinematics' own output peaks do), the loads are
+evaluated there, and a parabola through the best dense sample and its two
+neighbours gives the peak.
+
+Accuracy: on a 3,600-instant cycle the dense spacing is 0.1°/32, and for a
+smooth peak the parabola's value error is of order (spacing)³·|f'''|/|f|,
+below 1e-9 relative (the tests check 1e-9 against closed forms).  Where a
+load jumps (a motion law whose acceleration jumps), the peak is the larger
+one-sided value, found within one dense spacing of the jump.  Curves that
+come without a re-solve (`local` None) take the parabola through the
+sampled neighbours instead: value error of order h³·|f'''| with h the
+sample spacing (about 1e-7 relative for a curve with a few harmonics at
+3,600 instants).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from solver.kinematics.hermite import interpolate
+from solver.kinematics.newton import derivatives, newton
+
+PEAK_CANDIDATE = 0.99  # other sampled local maxima within this share of the best are refined too
+LOCAL_POINTS = 65  # dense local grid over the two sample intervals around a candidate
+FULL_TURN = 2.0 * math.pi  # rad of master angle per machine cycle
+PERIODIC_GAP = 1.5  # a closing gap up to this many sample spacings still counts as a whole cycle
+
+
+def local_kinematics(result, lo: float, hi: float, points: int = LOCAL_POINTS):
+    """(θ, q, q', q'') solved afresh at `points` master angles in [lo, hi] rad; arrays (N,) and (N, n).
+
+    Instants where Newton does not converge are left out.
+    """
+    system = result.system
+    theta = np.linspace(lo, hi, points)
+    t = result.theta
+    q, dq, ddq = result.q.T, result.dq.T, result.ddq.T
+    if t.size > 1:
+        guess = interpolate(t, q, dq, ddq, np.clip(theta, t[0], t[-1]))
+        outside = (theta < t[0]) | (theta > t[-1])
+        if np.any(outside):  # beyond the solved ends (a periodic wrap): Taylor from the nearest end
+            end = np.where(theta < t[0], 0, t.size - 1)
+            h = theta - t[end]
+            taylor = q[:, end] + dq[:, end] * h + 0.5 * ddq[:, end] * h * h + result.dddq.T[:, end] * h**3 / 6
+            guess[:, outside] = taylor[:, outside]
+    else:
+        guess = np.repeat(q, theta.size, axis=1)
+    drive = system.drive(theta)
+    solved = newton(system, guess, drive, system.elimination_plan())
+    d1, d2 = derivatives(system, solved, drive, orders=2)
+    keep = solved.converged
+    return theta[keep], solved.q[:, keep].T, d1[:, keep].T, d2[:, keep].T
+
+
+def parabola_vertex(x: np.ndarray, y: np.ndarray, k: int) -> tuple[float, float]:
+    """(x, y) of the vertex of the parabola through samples k−1, k, k+1 (the sample itself at an end)."""
+    if k == 0 or k == len(y) - 1:
+        return float(x[k]), float(y[k])
+    y0, y1, y2 = y[k - 1], y[k], y[k + 1]
+    denom = y0 - 2.0 * y1 + y2
+    if denom >= 0.0:  # not a cap (a kink or a flat top): the sample stands
+        return float(x[k]), float(y1)
+    h = x[k + 1] - x[k]
+    shift = 0.5 * (y0 - y2) / denom
+    return float(x[k] + shift * h), float(y1 - 0.25 * (y0 - y2) * shift)
+
+
+def refined_peak(theta: np.ndarray, values: np.ndarray, periodic: bool, local=None) -> tuple[float, float]:
+    """(max |values|, master angle in rad) refined beyond the samples.
+
+    `periodic`: the samples cover one cycle (the last neighbours the first).
+    `local(lo, hi)` -> (θ dense, values dense) re-evaluates the curve on a
+    dense grid; without it a parabola through the sampled neighbours is used.
+    """
+    y = np.abs(np.asarray(values, dtype=float))
+    n = y.size
+    if n == 0:
+        return 0.0, math.nan
+    best = int(np.argmax(y))
+    top = (float(y[best]), float(theta[best]))
+    if n < 3:
+        return top
+    left, right = np.roll(y, 1), np.roll(y, -1)
+    if not periodic:
+        left[0], right[-1] = -np.inf, -np.inf
+    candidates = np.flatnonzero((y >= left) & (y >= right) & (y >= top[0] * PEAK_CANDIDATE))
+    for i in candidates:
+        lo_i, hi_i = i - 1, i + 1
+        if periodic:
+            lo = theta[lo_i] - (FULL_TURN if lo_i < 0 else 0.0)
+            hi = theta[hi_i % n] + (FULL_TURN if hi_i >= n else 0.0)
+        else:
+            lo, hi = theta[max(lo_i, 0)], theta[min(hi_i, n - 1)]
+        if local is not None:
+            lt, lv = local(lo, hi)
+            if lt.size < 3:
+                continue
+            ly = np.abs(lv)
+            at, value = parabola_vertex(lt, ly, int(np.argmax(ly)))
+        else:
+            at, value = _sampled_vertex(theta, y, i, lo, hi, periodic)
+        if value > top[0]:
+            top = (value, at)
+    return top
+
+
+def _sampled_vertex(theta, y, i, lo, hi, periodic) -> tuple[float, float]:
+    """Parabola through sample i and its neighbours (at lo, hi); the sample itself at an open end or uneven spacing."""
+    n = y.size
+    even = abs((hi - theta[i]) - (theta[i] - lo)) <= 1e-9 * (hi - lo)
+    if not even or not (periodic or 0 < i < n - 1):
+        return float(theta[i]), float(y[i])
+    return parabola_vertex(np.array([lo, theta[i], hi]), y[[i - 1, i, (i + 1) % n]], 1)
+
+
+def cycle_weights(theta: np.ndarray, periodic: bool) -> np.ndarray:
+    """Trapezoid weights (rad) for averaging over master angle: uniform in θ is uniform in time.
+
+    Periodic: each sample stands for half of each neighbouring interval, the
+    last neighbouring the first a cycle later (equal weights 2π/N on the
+    uniform grid: the rectangle rule, exact for trigonometric polynomials of
+    degree below N).  Otherwise the ordinary trapezoid over the solved span.
+    """
+    n = theta.size
+    if n < 2:
+        return np.ones(n)
+    if periodic:
+        ext = np.concatenate([[theta[-1] - FULL_TURN], theta, [theta[0] + FULL_TURN]])
+        return 0.5 * (ext[2:] - ext[:-2])
+    w = np.zeros(n)
+    d = np.diff(theta)
+    w[:-1] += 0.5 * d
+    w[1:] += 0.5 * d
+    return w
+
+
+def cycle_rms(theta: np.ndarray, values: np.ndarray, periodic: bool) -> float:
+    """Root mean square over master angle (= over time at constant machine speed)."""
+    if values.size == 0:
+        return 0.0
+    w = cycle_weights(theta, periodic)
+    return float(np.sqrt(np.sum(w * values * values) / np.sum(w)))
+
+
+def is_periodic(theta: np.ndarray, complete: bool) -> bool:
+    """Whether solved instants cover one whole cycle: complete, and the closing gap no wider than the others."""
+    if not complete or theta.size < 3:
+        return False
+    gap = theta[0] + FULL_TURN - theta[-1]
+    return 0.0 < gap <= PERIODIC_GAP * float(np.max(np.diff(theta)))
+
+
+def degrees_at(theta: float, periodic: bool) -> float:
+    """Master angle in degrees for a Peak: within [0, 360) on a full cycle."""
+    if math.isnan(theta):
+        return theta
+    return math.degrees(theta % FULL_TURN if periodic else theta)
