@@ -156,7 +156,7 @@ def is_periodic(theta: np.ndarray, complete: bool) -> bool:
     if not complete or theta.size < 3:
         return False
     gap = theta[0] + FULL_TURN - theta[-1]
-    return 0.0 < gap <= PERIODIC_GAP * float(np.max(np.diff(theta)))
+    return bool(0.0 < gap <= PERIODIC_GAP * float(np.max(np.diff(theta))))
 
 
 def degrees_at(theta: float, periodic: bool) -> float:
