@@ -66,7 +66,10 @@ def solve_cycle(mechanism, speed: float, instants: int = INSTANTS, theta=None, d
     theta = np.asarray(theta, dtype=float)
     if theta.ndim != 1 or theta.size == 0 or np.any(np.diff(theta) <= 0.0) or not np.all(np.isfinite(theta)):
         raise ValueError("theta must be a non-empty, strictly increasing array of finite master angles (rad)")
-    return CycleSolver(system).solve(theta, float(speed), float(drawn_at))
+    try:
+        return CycleSolver(system).solve(theta, float(speed), float(drawn_at))
+    finally:
+        system.release_workspace()  # the result keeps the System; its scratch memory serves the next solve
 
 
 class CycleSolver:

@@ -16,6 +16,7 @@ divided by the model's length scale L, angles as they are.
 
 from __future__ import annotations
 
+import weakref
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -26,6 +27,7 @@ from .frames import Pose, Rates
 from .linalg import PLAN_SAMPLES, PLAN_SEED, EliminationPlan
 from .model import GROUND, Mechanism
 from .motion import evaluate_motion
+from .workspace import borrow, give_back
 
 SLOT_COLUMNS = 3  # x, y, φ per body
 
@@ -43,6 +45,7 @@ class Group:
     variable: list[tuple[int, int]] = field(default_factory=list)  # (row, col) entries that vary
     var_slots: np.ndarray | None = None  # compact-Jacobian slot of each varying entry, instance-major per entry
     flat_rows: np.ndarray | None = None  # rows.ravel(): where a kind's stacked rows go
+    number: int = 0  # position among the System's groups (names its scratch buffers)
 
 
 class Jacobian:
@@ -88,7 +91,8 @@ class System:
         index = {name: b for b, name in enumerate(self.bodies)}
         index[GROUND] = self.B
         self.length = mechanism.length_scale()
-        self._scratch: dict = {}
+        self._workspace = None  # scratch memory, borrowed on first use (workspace.py)
+        self._give_back = None
         self._kept = None  # poses and rates of the last gamma call, for eta(after_gamma=True)
 
         entries = [(j.name, j.resolve(mechanism)) for j in mechanism.joints.values()]
@@ -109,6 +113,8 @@ class System:
         self.m = len(self.row_names)
         self.first_driver_row = self.m - len(drivers)  # driver rows come last
         self.groups = [self._group(kind, items, index) for kind, items in by_kind.items()]
+        for number, g in enumerate(self.groups):
+            g.number = number
 
         self.row_scale = np.array([1.0 / self.length if u == LENGTH else 1.0 for u in self.row_units])
         self.col_scale = np.tile([self.length, self.length, 1.0], self.B)
@@ -148,15 +154,24 @@ class System:
 
     # -- poses ---------------------------------------------------------------
     # Poses, rates and the per-kind gathers of them are temporaries of one
-    # evaluation; they live in buffers kept per size (`_scratch`), so that
+    # evaluation; they live in a borrowed workspace (workspace.py), so that
     # evaluating thousands of instants does not ask the allocator for fresh
-    # megabytes (and the OS for fresh pages) on every call.  Kinds return new
-    # arrays; whatever refers into a buffer is copied out before it is reused.
+    # megabytes (and the OS for fresh pages) on every call or every solve.
+    # Kinds return new arrays; whatever refers into a buffer is copied out
+    # before it is reused.
     def _buffer(self, key, shape) -> np.ndarray:
-        buf = self._scratch.get(key)
-        if buf is None or buf.shape != shape:
-            buf = self._scratch[key] = np.empty(shape)
-        return buf
+        space = self._workspace
+        if space is None:
+            space = self._workspace = borrow()
+            self._give_back = weakref.finalize(self, give_back, space)
+        return space.array(key, shape)
+
+    def release_workspace(self) -> None:
+        """Give the scratch memory back for the next solve; it is borrowed again if this System evaluates again."""
+        if self._workspace is not None:
+            self._give_back()
+            self._workspace = None
+            self._kept = None
 
     def _poses(self, q: np.ndarray) -> np.ndarray:
         """(5, B+1, N): x, y, φ, cos φ, sin φ of every body; the ground (last) at rest at the origin."""
@@ -178,7 +193,7 @@ class System:
 
     def _take(self, g: Group, arrays, key) -> np.ndarray:
         shape = (arrays.shape[0], g.slots.shape[0], g.slots.shape[1], arrays.shape[2])
-        return np.take(arrays, g.slots, axis=1, out=self._buffer((key, id(g)), shape), mode="clip")
+        return np.take(arrays, g.slots, axis=1, out=self._buffer((key, g.number), shape), mode="clip")
 
     def _slot_poses(self, g: Group, arrays) -> list[Pose]:
         taken = self._take(g, arrays, "pose")  # (5, slots, k, N)
