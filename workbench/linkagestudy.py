@@ -1,0 +1,395 @@
+"""A linkage over one machine cycle: solved, and its outputs' peaks against their limits.
+
+Values here are in the file's units (mm or deg, per s^k), master angles in
+degrees.  The cycle is solved in stretches: it is cut at every segment
+boundary of every axis a driver follows, and each stretch is solved on its
+own, starting from where the previous one ended (so the linkage stays on the
+branch it was drawn on).  Within a stretch every driver follows one smooth
+law, which the solver needs:
+
+* its branch check compares each step with the step's size, so a linkage at
+  rest (every driver in a dwell) would be judged on rounding noise — a
+  stretch at rest is solved once, at its start, and held;
+* a velocity jump between segments would read as a jump to another branch;
+* peaks are refined by a parabola through dense samples, which overshoots
+  where a derivative jumps — within a stretch none does, and each stretch's
+  ends are sampled exactly (its last instant END_GAP before the cut), which
+  also gives the size of every jump at a cut.
+
+A linkage driven only at steady speed has no cuts and is solved in one go.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from motionlaws import Limits
+from motionlaws.peaks import LimitCheck, Peak
+from motionlaws.peaksearch import TIE
+from solver.kinematics import (
+    INSTANTS,
+    SOLVED,
+    CycleResult,
+    TransmissionAngle,
+    output_peaks,
+    solve_cycle,
+)
+
+from .linkagefile import LinkageSpec
+from .linkagemodel import BuiltLinkage, build_linkage
+
+FULL_TURN = 360.0  # master degrees per cycle
+QUANTITIES = ("velocity", "acceleration", "jerk")
+END_GAP = 1e-9  # rad before a cut where a stretch's last instant is solved: its left-hand values
+NEAR_START = 1e-4  # rad: an instant this close after a stretch's start is assembled there directly (a march
+#                    step this short from rest would move the linkage less than rounding noise)
+CUT_MERGE = 1e-9  # deg: segment boundaries of different axes this close are one cut
+MIN_STRETCH_INSTANTS = 16  # fewest instants a stretch is analysed on (the peak search needs neighbours)
+JUMP_SHARE = 1e-6  # a jump at a cut below this share of the output's largest |derivative| counts as none
+STRETCH = "stretch"  # status of a stretch's own result: part of a cycle, so its ends are not joined
+RIGHT_ANGLE = 0.5 * math.pi
+
+
+@dataclass(frozen=True)
+class Stretch:
+    """A stretch of master angle (deg) in which every driver follows one segment; `rest`: every one dwells."""
+
+    start: float
+    end: float
+    rest: bool
+
+
+def stretches(project, spec: LinkageSpec) -> tuple[Stretch, ...]:
+    """The cycle cut at every segment boundary of the axes the drivers follow; () if they follow none."""
+    programs = [project.programs[d.axis] for d in spec.drivers if d.axis is not None]
+    if not programs:
+        return ()
+    cuts: list[float] = []
+    for theta0 in sorted(s.theta0 for p in programs for s in p.shapes):
+        if not cuts or theta0 - cuts[-1] > CUT_MERGE:
+            cuts.append(theta0)
+    steady = any(d.turns is not None for d in spec.drivers)
+    out = []
+    for a, b in zip(cuts, cuts[1:] + [FULL_TURN]):
+        middle = 0.5 * (a + b)
+        rest = not steady and all(_law_at(p, middle) == "dwell" for p in programs)
+        out.append(Stretch(a, b, rest))
+    return tuple(out)
+
+
+def _law_at(program, theta_deg: float) -> str:
+    k = int(np.searchsorted(program.bounds, theta_deg, side="right")) - 1
+    return program.shapes[min(max(k, 0), len(program.shapes) - 1)].law_id
+
+
+# --- solving ----------------------------------------------------------------------------
+
+
+@dataclass
+class Piece:
+    """One stretch as solved: its own result (a single instant when at rest) and its grid's extras."""
+
+    stretch: Stretch
+    result: CycleResult
+    keep: np.ndarray  # which of result's instants were asked for (False: a stretch end added to follow on)
+
+
+@dataclass
+class LinkageSolution:
+    """The cycle solved at the instants asked for: `result` (a solver `CycleResult`; draw with
+    `result.point(body, point)`, m) and, when cut into stretches, each stretch's `pieces`."""
+
+    built: BuiltLinkage
+    result: CycleResult
+    pieces: list[Piece]
+
+    @property
+    def status(self) -> str:
+        return self.result.status
+
+
+def _end_state(result: CycleResult, bodies) -> dict:
+    """Body coordinates (m, m, rad) at a result's last instant, as guesses for the next stretch."""
+    q = result.q[-1]
+    return {b: tuple(q[3 * k : 3 * k + 3]) for k, b in enumerate(bodies)}
+
+
+def _grid(stretch: Stretch, theta: np.ndarray | None, instants: int) -> tuple[np.ndarray, np.ndarray]:
+    """(grid, keep) for a stretch: equally spaced from its start to END_GAP before its end when
+    analysing (theta None), else the asked instants inside it plus that end instant."""
+    a, b = math.radians(stretch.start), math.radians(stretch.end)
+    if theta is None:
+        count = max(MIN_STRETCH_INSTANTS, int(math.ceil(instants * (stretch.end - stretch.start) / FULL_TURN)) + 1)
+        grid = np.linspace(a, b - END_GAP, count)
+        return grid, np.ones(count, dtype=bool)
+    inside = theta[(theta >= a) & (theta < b)]
+    if inside.size and b - inside[-1] < NEAR_START:
+        return inside, np.ones(inside.size, dtype=bool)
+    return np.append(inside, b - END_GAP), np.append(np.ones(inside.size, dtype=bool), False)
+
+
+def solve_linkage(project, spec: LinkageSpec, theta=None, instants: int = INSTANTS) -> LinkageSolution:
+    """Solve one cycle at master angles `theta` (rad, increasing, in [0, 2π)) or, for analysis,
+    on `instants` per cycle (every stretch's ends included).  Raises `LinkageFault` (linkagemodel)."""
+    built = build_linkage(project, spec)
+    speed = project.speed
+    cut = stretches(project, spec)
+    if not cut:
+        grid = None if theta is None else np.asarray(theta, dtype=float)
+        result = solve_cycle(built.mechanism, speed, instants=instants, theta=grid)
+        return LinkageSolution(built, result, [])
+    theta = None if theta is None else np.asarray(theta, dtype=float)
+    bodies = [b.name for b in spec.bodies]
+    pieces: list[Piece] = []
+    guesses = None  # the first stretch starts from the file's rough placement, drawn at master 0
+    for stretch in cut:
+        mechanism = build_linkage(project, spec, guesses).mechanism
+        a = math.radians(stretch.start)
+        grid, keep = _grid(stretch, theta, instants)
+        if stretch.rest:
+            result = solve_cycle(mechanism, speed, theta=np.array([a]), drawn_at=a)
+        else:
+            drawn = grid[0] if grid[0] - a < NEAR_START else a
+            result = solve_cycle(mechanism, speed, theta=grid, drawn_at=drawn)
+        pieces.append(Piece(stretch, result, keep))
+        if result.status != SOLVED:
+            break
+        guesses = _end_state(result, bodies)
+    return LinkageSolution(built, _merge(pieces, theta, speed), pieces)
+
+
+def _merge(pieces: list[Piece], theta, speed: float) -> CycleResult:
+    """One `CycleResult` over the instants asked for (stretches at rest held at their start)."""
+    rows = {k: [] for k in ("theta", "q", "dq", "ddq", "dddq")}
+    for piece in pieces:
+        r = piece.result
+        if piece.stretch.rest and r.status == SOLVED:
+            if theta is None:
+                t, _ = _grid(piece.stretch, None, 0)
+            else:
+                lo, hi = math.radians(piece.stretch.start), math.radians(piece.stretch.end)
+                t = theta[(theta >= lo) & (theta < hi)]
+            zero = np.zeros((t.size, r.q.shape[1]))
+            for key, value in (("theta", t), ("q", np.repeat(r.q[:1], t.size, axis=0)), ("dq", zero),
+                               ("ddq", zero), ("dddq", zero)):
+                rows[key].append(value)
+            continue
+        keep = piece.keep[: r.theta.size]
+        for key in rows:
+            rows[key].append(getattr(r, key)[keep])
+    last = pieces[-1].result
+    n = len(last.coordinates)
+    arrays = {k: (np.concatenate(v) if v else np.empty((0,) if k == "theta" else (0, n))) for k, v in rows.items()}
+    requested = INSTANTS if theta is None else theta.size
+    return CycleResult(last.status, last.message, arrays["theta"], arrays["q"], arrays["dq"], arrays["ddq"],
+                       arrays["dddq"], last.coordinates, speed, requested, pieces[0].result.dof, last.dead_point,
+                       last.system)
+
+
+# --- outputs ---------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class OutputJump:
+    """At a cut (master deg), the output's velocity and acceleration jump (right minus left, unit/s^k)."""
+
+    at: float
+    velocity_jump: float
+    acceleration_jump: float
+
+
+@dataclass(frozen=True)
+class OutputStudy:
+    """One output over the cycle in file units: extremes, peaks, limit checks, max speed, jumps."""
+
+    name: str
+    unit: str
+    speed: float
+    minimum: Peak
+    maximum: Peak
+    peaks: dict[str, Peak]
+    checks: tuple[LimitCheck, ...]
+    max_speed: float | None
+    jumps: tuple[OutputJump, ...]
+    folds: tuple[float, ...] = ()  # master deg where a transmission angle passes 90° (its rate flips sign)
+
+    @property
+    def ok(self) -> bool:
+        return all(c.ok for c in self.checks)
+
+
+def _scale(unit: str) -> float:
+    """File unit per SI unit: mm per m, deg per rad."""
+    return 1e3 if unit == "mm" else 180.0 / math.pi
+
+
+def _views(solution: LinkageSolution):
+    """(view, stretch) pairs to search for peaks: the whole cycle, or each stretch not at rest."""
+    if not solution.pieces:
+        return [(solution.result, None)]
+    return [(replace(p.result, status=STRETCH), p.stretch) for p in solution.pieces if not p.stretch.rest]
+
+
+def _ends(solution: LinkageSolution, output) -> list[tuple[float, np.ndarray, np.ndarray]]:
+    """Per stretch: (start deg, values at its start, values at its end), each (g, g', g'', g''') per rad^k."""
+    out = []
+    for piece in solution.pieces:
+        curve = piece.result.output(output)
+        rows = np.array([curve.value, curve.d1, curve.d2, curve.d3])
+        first, last = rows[:, 0].copy(), rows[:, -1].copy()
+        if piece.stretch.rest:
+            first[1:] = last[1:] = 0.0
+        out.append((piece.stretch.start, first, last))
+    return out
+
+
+def _folds(view, output) -> list[tuple[float, float]]:
+    """(master deg, size of the jump of μ' per rad) where a transmission angle μ passes 90°.
+
+    μ folds the angle ψ ∈ [0°, 180°] between the two lines at 90°, so its rate
+    flips sign there: a velocity jump of 2|ψ'|.
+    """
+    if not isinstance(output, TransmissionAngle):
+        return []
+    psi = view.output(replace(output, acute=False))
+    side = np.sign(psi.value - RIGHT_ANGLE)
+    where = np.flatnonzero(side[:-1] * side[1:] < 0.0)
+    out = []
+    for i in where:
+        share = (RIGHT_ANGLE - psi.value[i]) / (psi.value[i + 1] - psi.value[i])
+        at = psi.theta[i] + share * (psi.theta[i + 1] - psi.theta[i])
+        out.append((math.degrees(at), 2.0 * abs(psi.d1[i] + share * (psi.d1[i + 1] - psi.d1[i]))))
+    return out
+
+
+def _angle(item) -> float:
+    return item[1]
+
+
+def _first_max(items):
+    """The (value, at) with the largest value; the earliest given on ties (as motionlaws does)."""
+    best = None
+    for value, at in items:
+        if best is None or value > best[0] + TIE * abs(best[0]):
+            best = (value, at)
+    return best
+
+
+def study_output(solution: LinkageSolution, name: str, limits: Limits) -> OutputStudy:
+    """Extremes, peaks (true maxima), jumps, limit checks and max speed of one output of a solved cycle."""
+    output = solution.built.outputs[name]
+    unit = solution.built.units[name]
+    k_unit = _scale(unit)
+    speed = solution.result.speed
+    omega = 2.0 * math.pi * speed / 60.0
+    highs, lows, peaks = [], [], {q: [] for q in QUANTITIES}
+    largest = np.zeros(3)  # largest |g'|, |g''|, |g'''| per rad^k seen
+    folds = []
+    for view, _ in _views(solution):
+        p = output_peaks(view, output)
+        highs.append((p.maximum.value, p.maximum.at))
+        lows.append((-p.minimum.value, p.minimum.at))
+        for q in QUANTITIES:
+            peaks[q].append((p.peaks[q].value, p.peaks[q].at))
+        curve = view.output(output)
+        largest = np.maximum(largest, [np.max(np.abs(d)) for d in (curve.d1, curve.d2, curve.d3)])
+        folds += _folds(view, output)
+    jumps = []
+    ends = _ends(solution, output)
+    for k, (at, first, _) in enumerate(ends):
+        before = ends[k - 1][2]
+        dv, da = first[1] - before[1], first[2] - before[2]
+        dv = dv if abs(dv) > JUMP_SHARE * largest[0] else 0.0
+        da = da if abs(da) > JUMP_SHARE * largest[1] else 0.0
+        if dv or da:
+            jumps.append(OutputJump(at, dv * omega * k_unit, da * omega**2 * k_unit))
+        if solution.pieces[k].stretch.rest:
+            highs.append((first[0], at))
+            lows.append((-first[0], at))
+    high, low = _first_max(sorted(highs, key=_angle)), _first_max(sorted(lows, key=_angle))
+    out = {q: Peak(v * k_unit, at) for q, (v, at) in ((q, _first_max(sorted(peaks[q], key=_angle))) for q in QUANTITIES)}
+    velocity_jumps = [(abs(j.velocity_jump), j.at) for j in jumps if j.velocity_jump]
+    velocity_jumps += [(d * omega * k_unit, at) for at, d in folds]
+    acceleration_jumps = [(abs(j.acceleration_jump), j.at) for j in jumps if j.acceleration_jump]
+    if velocity_jumps:
+        at = _first_max(velocity_jumps)[1]
+        out["acceleration"] = out["jerk"] = Peak(None, at, True)
+    elif acceleration_jumps:
+        out["jerk"] = Peak(None, _first_max(acceleration_jumps)[1], True)
+    checks, bounds = [], []
+    for k, (q, limit) in enumerate(limits.items(), start=1):
+        if limit is None:
+            continue
+        peak = out[q]
+        checks.append(LimitCheck(q, float(limit), peak, math.inf if peak.infinite else peak.value / limit))
+        if peak.infinite:
+            bounds.append(0.0)
+        elif peak.value > 0.0:
+            bounds.append(speed * (limit / peak.value) ** (1.0 / k))
+    return OutputStudy(name, unit, speed, Peak(-low[0] * k_unit, low[1]), Peak(high[0] * k_unit, high[1]), out,
+                       tuple(checks), min(bounds) if bounds else None, tuple(jumps), tuple(at for at, _ in folds))
+
+
+# --- the linkage ---------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class LinkageStudy:
+    """A linkage analysed at the machine speed: how the solve went, and each output (when solved).
+
+    `status` is the solver's (`solved`, `dead-point`, `not-assembled`,
+    `not-driven`); `stop_at` the master angle (deg) where it stopped;
+    `solution` holds the solved instants for drawing.
+    """
+
+    spec: LinkageSpec
+    solution: LinkageSolution
+    outputs: tuple[OutputStudy, ...]
+
+    @property
+    def status(self) -> str:
+        return self.solution.result.status
+
+    @property
+    def message(self) -> str:
+        return self.solution.result.message
+
+    @property
+    def stop_at(self) -> float | None:
+        """Master deg where the solve stopped: the dead point, or where it was assembled; None when solved."""
+        r = self.solution.result
+        if r.status == SOLVED:
+            return None
+        if r.dead_point is not None:
+            return math.degrees(r.dead_point.at) % FULL_TURN
+        pieces = self.solution.pieces
+        return pieces[-1].stretch.start if pieces else 0.0
+
+    @property
+    def ok(self) -> bool:
+        return self.status == SOLVED and all(o.ok for o in self.outputs)
+
+
+def study_linkage(project, spec: LinkageSpec, instants: int = INSTANTS) -> LinkageStudy:
+    """Solve the linkage over a cycle and study every output (none when it did not solve)."""
+    solution = solve_linkage(project, spec, instants=instants)
+    outputs = ()
+    if solution.status == SOLVED:
+        outputs = tuple(study_output(solution, o.name, o.limits) for o in spec.outputs)
+    return LinkageStudy(spec, solution, outputs)
+
+
+def output_table(project, spec: LinkageSpec, name: str, theta_deg: np.ndarray):
+    """(solution, value, velocity, acceleration, jerk) of output `name` at master angles θ (deg), file units.
+
+    The arrays are None when the cycle did not solve (see solution.result.message).
+    """
+    solution = solve_linkage(project, spec, theta=np.radians(theta_deg))
+    if solution.status != SOLVED:
+        return solution, None, None, None, None
+    curve = solution.result.output(solution.built.outputs[name])
+    k = _scale(solution.built.units[name])
+    return solution, curve.value * k, curve.velocity * k, curve.acceleration * k, curve.jerk * k
