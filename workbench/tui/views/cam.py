@@ -366,7 +366,7 @@ def _radius(mm: float) -> str:
     """A signed radius of curvature in words: "52.1 mm", "80 mm concave", "∞ (straight)"."""
     if not math.isfinite(mm) or abs(mm) > STRAIGHT:
         return "∞ (straight)"
-    return f"{fmt(abs(mm))} mm" + ("" if mm >= 0 else " concave")
+    return f"{fmt(abs(mm), 3)} mm" + ("" if mm >= 0 else " concave")
 
 
 register_view(CamView)

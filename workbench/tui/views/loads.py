@@ -36,7 +36,10 @@ for _name in loads_data.SOURCE_MODULES:  # each registers its source on import
     if importlib.util.find_spec(f"{loads_data.__package__}.{_name}") is not None:
         importlib.import_module(f"{loads_data.__package__}.{_name}")
 
-PLOT_ROWS = (7, 13)  # least and most rows of the plots; a third of the view between them
+MIN_PLOT_ROWS = 7  # least rows of the plots; they take what the figures leave
+PLOT_SHARE = 0.6  # but no more than this share of the view
+BODY_ROWS = 12  # rows the figures and notes need before an item is known
+CAUTION_ROWS = 3  # the rigid-body caution at 80 columns
 
 LOADS_EXAMPLE = """\
 [cam.loads]                    # under a [[cam]]: a spring-closed follower
@@ -193,10 +196,19 @@ class LoadsView(WorkbenchView):
         return next((i for i in self.items if i.name == self.item_name), None)
 
     def on_resize(self) -> None:
-        h = self.size.height
-        if h:
-            self.query_one("#loads-plots").styles.height = max(PLOT_ROWS[0], min(PLOT_ROWS[1], h // 3))
+        self._size_plots()
         self._refresh_bar()
+
+    def _size_plots(self) -> None:
+        """The plots get what the figures and notes leave (within `PLOT_ROWS` and a share of the height)."""
+        h = self.size.height
+        if not h:
+            return
+        item = self.item
+        body = BODY_ROWS if item is None else len(item.figures) + 1 + CAUTION_ROWS + 1 + len(item.notes)
+        body += len(unshown_parts(self.project)) if self.project is not None else 0
+        rows = min(h - 1 - body, int(h * PLOT_SHARE))
+        self.query_one("#loads-plots").styles.height = max(MIN_PLOT_ROWS, rows)
 
     def _refresh_all(self) -> None:
         has = bool(self.items)
@@ -208,6 +220,7 @@ class LoadsView(WorkbenchView):
             self.query_one("#loads-empty-text", Static).update(nothing_text(self.project))
         item = self.item
         self._refresh_bar()
+        self._size_plots()
         plots = list(self.query(AnglePlot))
         for k, plot in enumerate(plots):
             spec = item.plots[k] if item is not None and k < len(item.plots) else None
@@ -218,8 +231,10 @@ class LoadsView(WorkbenchView):
         self.query_one("#loads-caution", Static).update(caution)
         notes = Text("\n".join(item.notes) if item is not None else "", style="dim")
         self.query_one("#loads-notes", Static).update(notes)
-        pending = Text("\n").join(pending_lines(self.project))
-        self.query_one("#loads-pending", Static).update(pending)
+        pending = pending_lines(self.project)
+        box = self.query_one("#loads-pending", Static)
+        box.update(Text("\n").join(pending))
+        box.display = bool(pending)
         self._refresh_readout()
 
     def _refresh_readout(self) -> None:

@@ -23,6 +23,7 @@ from textual_plot import HiResMode
 from ...axisreport import fmt
 from ...camfile import COMMON_PRACTICE
 from ..sampling import downsample_minmax
+from .braille import BRAILLE_BASE, braille_cells
 from .cam_data import MM, CamEntry
 from .cam_verdicts import angle, num
 from .motion_plots import BRAILLE_DOTS_X, ROWS_PER_TICK, MotionPlot
@@ -149,6 +150,27 @@ class AnglePlot(MotionPlot):
         self.title = spec.fitted(self.size.width - TITLE_GAP)
         self.set_ylabel(escape(self.title))
 
+    def _render_line_plot(self, dataset) -> None:
+        """Braille lines whose dots join those already in a cell (two lines sharing a row of cells
+        both stay visible; the later one gives the colour)."""
+        if dataset.hires_mode is not HiResMode.BRAILLE or dataset.x.size == 0:
+            super()._render_line_plot(dataset)
+            return
+        canvas = self.query_one("#plot", Canvas)
+        region = self._scale_rectangle
+        x = region.x + (dataset.x - self._x_min) * (region.right - region.x) / (self._x_max - self._x_min)
+        y = region.bottom + (dataset.y - self._y_min) * (region.y - region.bottom) / (self._y_max - self._y_min)
+        size = canvas._canvas_size
+        columns, rows, chars = braille_cells(x, y, size.width, size.height)
+        buffer, styles = canvas._buffer, canvas._styles
+        for c, r, ch in zip(columns.tolist(), rows.tolist(), chars):
+            old = buffer[r][c]
+            if len(old) == 1 and BRAILLE_BASE <= ord(old) < BRAILLE_BASE + 0x100:
+                ch = chr(ord(old) | ord(ch))
+            buffer[r][c] = ch
+            styles[r][c] = dataset.line_style
+        canvas.refresh()
+
     def _render_y_label(self) -> None:
         """The title on a cleared top margin (a shorter title must not leave the end of a longer one)."""
         self.query_one("#margin-top", Canvas).reset()
@@ -207,8 +229,7 @@ def radius_plot(entry: CamEntry) -> PlotSpec:
     rho = np.append(rho, rho[:1])
     radii = a.pitch_radii if roller else a.profile_radii
     least = radii.convex.value * MM
-    word = "pitch curve" if roller else "profile"
-    parts = [f"{word} ρ [mm]"]
+    parts = ["pitch ρ [mm]" if roller else "profile ρ [mm]"]
     lines = [RefLine(0.0, ZERO_STYLE)]
     marks = []
     limits = study.limits

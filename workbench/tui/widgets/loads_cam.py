@@ -23,7 +23,7 @@ from .cam_verdicts import num
 from .loads_data import Figure, LoadsItem, register_loads_source
 
 CONTACT_STYLE = "bright_cyan"
-TORQUE_STYLE = "bright_magenta"
+TORQUE_STYLE = "bright_green"
 
 
 def _deg(value: float) -> str:
@@ -121,7 +121,7 @@ def cam_follower_loads(project: Project) -> list[LoadsItem]:
             kind="cam follower",
             ok=loads.ok,
             verdict="✓ contact holds" if loads.ok else "✗ CONTACT AT RISK",
-            about=(follower, f"axis {spec.axis}", f"{num(loads.speed)} cycles/min"),
+            about=(f"at {num(loads.speed)} cycles/min", follower, f"axis {spec.axis}"),
             plots=(contact_plot(loads, at_radius), torque_plot(loads)),
             figures=figures(loads, at_radius),
             notes=tuple(notes),
