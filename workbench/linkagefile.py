@@ -416,7 +416,7 @@ class _LinkageReader:
 
     def driver(self, raw, number: int, earlier: list[DriverSpec]) -> DriverSpec:
         d = self.sub(raw, "driver", number)
-        _refuse_unknown(d, {"name", *DRIVEN, "axis", "turns", "offset"})
+        _refuse_unknown(d, {"name", *REPORTED, "axis", "turns", "offset"})  # transmission: refused below, in words
         name = _name(d, "driver")
         if name in self.joints:
             raise d.error("name", "is the name of a joint: drivers and joints need different names")
