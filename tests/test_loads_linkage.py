@@ -233,3 +233,29 @@ def test_loading_errors_name_the_item_and_key():
         with pytest.raises(LoadsError) as err:
             linkage_loads(result, loading)
         assert (err.value.item, err.value.key) == (item, key), err.value.message
+
+
+def test_a_cycle_stopped_at_a_dead_point_gives_loads_up_to_it():
+    """Non-Grashof four-bar (s + l > p + q; Grashof's criterion, Norton ch. 2) stops at its limit position:
+    loads cover the solved stretch, are not treated as periodic, and still agree by both routes."""
+    a, b, c, d = 0.09, 0.05, 0.07, 0.06  # m, as the kinematics' dead-point test
+    model = four_bar(a, b, c, d, 0.0)
+    result = solve_cycle(model, 60.0)
+    assert not result.success
+    loading = LinkageLoading({"coupler": BodyMass(1.0, (0.025, 0.0), 2e-4), "rocker": BodyMass(0.5, (0.035, 0.0), 2e-4)},
+                             gravity=(0.0, -G))
+    loads = linkage_loads(result, loading)
+    drive = loads.drives["motor"]
+    assert not loads.complete and not drive.periodic
+    assert drive.effort.shape == result.theta.shape
+    close(drive_efforts_by_power(result, loading)["motor"], drive.effort, 1e-9, "virtual power, partial cycle")
+    assert 0.0 <= math.radians(drive.peak.at) <= result.theta[-1] + 1e-12
+    assert drive.peak.value >= np.max(np.abs(drive.effort))
+
+
+def test_a_model_that_is_not_driven_is_refused():
+    model = four_bar(*FOUR)
+    model.remove("motor")
+    result = solve_cycle(model, SPEED)
+    with pytest.raises(LoadsError, match="no solved instants"):
+        linkage_loads(result, LinkageLoading())

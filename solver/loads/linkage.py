@@ -149,7 +149,7 @@ class JointReaction:
 class LoadParts:
     """Loads at N instants split as static + ω²·inertial (index 0 and 1 of the leading axis).
 
-    lam (2, N, m) multipliers; effort (2, K, N) per driver; motion (3, K, N)
+    lam (2, m, N) multipliers; effort (2, K, N) per driver; motion (3, K, N)
     driver d, d', d'' per rad^k; force (2, J, N, 2), couple (2, J, N) per
     joint; point (J, N, 2).
     """
@@ -191,13 +191,13 @@ class Kinetostatics:
         sys_ = self.system
         motion = body_motion(self.loading, q, dq, ddq)
         static, inertial = generalized_forces(self.loading, motion)
-        jac = dense_jacobian(sys_, q)
-        lam = multipliers(jac, np.stack([static, inertial], axis=2))  # (N, m, 2)
-        effort = -lam[:, sys_.first_driver_row :, :].transpose(2, 1, 0)  # e = −λ_d
+        jac = dense_jacobian(sys_, q)  # (m, n, N)
+        lam = multipliers(jac, np.stack([static, inertial], axis=2)).transpose(2, 1, 0)  # (2, m, N)
+        effort = -lam[:, sys_.first_driver_row :, :]  # e = −λ_d, (2, K, N)
         drive = sys_.drive(theta)[:3]
         point = joint_points(self.joints, sys_.bodies, q)
         force, couple = reactions(self.joints, self.rows, sys_.bodies, jac, lam, q, point)
-        return LoadParts(theta, lam.transpose(2, 0, 1), effort, drive, force, couple, point)
+        return LoadParts(theta, lam, effort, drive, force, couple, point)
 
     def local(self, lo: float, hi: float) -> LoadParts:
         """Parts on a dense grid over [lo, hi] rad, solved afresh (kept: several peaks share them)."""
@@ -236,7 +236,7 @@ class Kinetostatics:
                 mix(p.couple[:, k]), p.point[k], float(speed), self.periodic, local_joint,
             )
         return LinkageLoads(p.theta, float(speed), self.result.success, drives, reactions_,
-                            mix(p.lam), tuple(self.system.row_names), self)
+                            mix(p.lam).T, tuple(self.system.row_names), self)
 
 
 @dataclass(eq=False)

@@ -114,19 +114,25 @@ def generalized_forces(loading: CompiledLoading, motion: BodyMotion) -> tuple[np
 
 
 def dense_jacobian(system, q: np.ndarray) -> np.ndarray:
-    """Φq (N, m, n) at body coordinates q (N, n), from the kinematics' compiled system."""
-    return np.ascontiguousarray(system.jacobian(np.ascontiguousarray(q.T)).transpose(2, 0, 1))
-
-
-def multipliers(jac: np.ndarray, rhs: np.ndarray) -> np.ndarray:
-    """λ (N, m, k) solving Φqᵀ λ = rhs for stacked Φq (N, m, n) and rhs (N, n, k)."""
-    if jac.shape[1] != jac.shape[2]:
+    """Φq (m, n, N) at body coordinates q (N, n): the kinematics' layout, instants last."""
+    jac = system.jacobian(np.ascontiguousarray(q.T))
+    if jac.shape[0] != jac.shape[1]:
         raise LoadsError(
             "loads need a kinematically driven linkage: as many independent equations as body coordinates",
             None, "driver",
         )
+    return jac
+
+
+def stacked_solve(matrices: np.ndarray, rhs: np.ndarray) -> np.ndarray:
+    """Solve every matrix of a stack (N, n, n) — a view, any layout — for rhs (N, n, k)."""
     try:
-        return np.linalg.solve(jac.transpose(0, 2, 1), rhs)
+        return np.linalg.solve(matrices, rhs)
     except np.linalg.LinAlgError:
         raise LoadsError("the constraint Jacobian is singular at a solved instant (a dead point): "
                          "the loads there are not determined", None, None) from None
+
+
+def multipliers(jac: np.ndarray, rhs: np.ndarray) -> np.ndarray:
+    """λ (N, m, k) solving Φqᵀ λ = rhs for Φq (m, n, N) and rhs (N, n, k)."""
+    return stacked_solve(jac.transpose(2, 1, 0), rhs)

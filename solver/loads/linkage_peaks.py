@@ -1,8 +1,9 @@
 """True peaks of load curves: a dense local re-solve around each sampled maximum, then a parabola.
 
 A load peak is the largest magnitude of a curve over the master angle, not
-the largest sample.  Around the best sampled instant (and any other sampled
-local maximum within PEAK_CANDIDATE of it) the linkage is solved again on
+the largest sample.  Around the best sampled instant (and the other sampled
+local maxima within PEAK_CANDIDATE of it, the highest MAX_CANDIDATES of
+them; a flat stretch counts as its own peak) the linkage is solved again on
 LOCAL_POINTS master angles spanning the two neighbouring sample intervals
 (batched Newton from the quintic Hermite interpolation of the cycle's
 solutions, as the kinematics' own output peaks do), the loads are
@@ -30,6 +31,7 @@ from solver.kinematics.hermite import interpolate
 from solver.kinematics.newton import derivatives, newton
 
 PEAK_CANDIDATE = 0.99  # other sampled local maxima within this share of the best are refined too
+MAX_CANDIDATES = 8  # at most this many of the highest candidates are refined (ripple on a plateau)
 LOCAL_POINTS = 65  # dense local grid over the two sample intervals around a candidate
 FULL_TURN = 2.0 * math.pi  # rad of master angle per machine cycle
 PERIODIC_GAP = 1.5  # a closing gap up to this many sample spacings still counts as a whole cycle
@@ -92,7 +94,10 @@ def refined_peak(theta: np.ndarray, values: np.ndarray, periodic: bool, local=No
     left, right = np.roll(y, 1), np.roll(y, -1)
     if not periodic:
         left[0], right[-1] = -np.inf, -np.inf
-    candidates = np.flatnonzero((y >= left) & (y >= right) & (y >= top[0] * PEAK_CANDIDATE))
+    # local maxima near the best; a plateau (equal neighbours on both sides) is its own peak
+    cap = (y >= left) & (y >= right) & ((y > left) | (y > right))
+    candidates = np.flatnonzero(cap & (y >= top[0] * PEAK_CANDIDATE))
+    candidates = candidates[np.argsort(-y[candidates], kind="stable")][:MAX_CANDIDATES]
     for i in candidates:
         lo_i, hi_i = i - 1, i + 1
         if periodic:

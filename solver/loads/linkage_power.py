@@ -26,19 +26,18 @@ from __future__ import annotations
 import numpy as np
 
 from .linkage import omega_of
-from .linkage_dynamics import body_motion, dense_jacobian, point_offsets
+from .linkage_dynamics import body_motion, dense_jacobian, point_offsets, stacked_solve
 from .linkage_model import LinkageLoading, LoadsError
 
 
 def velocity_coefficients(system, q: np.ndarray) -> np.ndarray:
     """u (N, n, K): ∂q/∂d_k per driver k at body coordinates q (N, n)."""
-    jac = dense_jacobian(system, q)
-    if jac.shape[1] != jac.shape[2]:
-        raise LoadsError("loads need a kinematically driven linkage", None, "driver")
-    K = jac.shape[1] - system.first_driver_row
-    unit = np.zeros((jac.shape[1], K))
+    jac = dense_jacobian(system, q)  # (m, n, N)
+    m = jac.shape[0]
+    K = m - system.first_driver_row
+    unit = np.zeros((m, K))
     unit[system.first_driver_row :, :] = np.eye(K)
-    return np.linalg.solve(jac, np.broadcast_to(unit, (q.shape[0], *unit.shape)))
+    return stacked_solve(jac.transpose(2, 0, 1), np.broadcast_to(unit, (q.shape[0], m, K)))
 
 
 def drive_efforts_by_power(result, loading: LinkageLoading, speed: float | None = None) -> dict[str, np.ndarray]:

@@ -82,24 +82,33 @@ def joint_points(infos, bodies: list[str], q: np.ndarray) -> np.ndarray:
 def reactions(infos, rows, bodies, jac: np.ndarray, lam: np.ndarray, q: np.ndarray, points: np.ndarray):
     """(force (P, J, N, 2), couple (P, J, N)) on body j from body i, for P sets of multipliers.
 
-    jac (N, m, n); lam (N, m, P); q (N, n); points from `joint_points`.
+    jac (m, n, N) as the kinematics gives it; lam (P, m, N); q (N, n);
+    points from `joint_points`.  All joints at once: each joint's rows
+    (padded to the longest with a zero row) against the three columns of
+    the body its force is read from.
     """
     index = {b: k for k, b in enumerate(bodies)}
-    P, J, N = lam.shape[2], len(infos), q.shape[0]
-    force = np.empty((P, J, N, 2))
-    couple = np.empty((P, J, N))
-    for k, info in enumerate(infos):  # one step per joint, each over all instants
-        on_j = info.body_j != GROUND
-        b = index[info.body_j if on_j else info.body_i]
-        r = rows[info.name]
-        block = jac[:, r, 3 * b : 3 * b + 3]  # (N, rows, 3)
-        gen = -np.einsum("nrc,nrp->pnc", block, lam[:, r, :])  # (P, N, 3): on body b
-        dx = points[k, :, 0] - q[:, 3 * b]
-        dy = points[k, :, 1] - q[:, 3 * b + 1]
-        fx, fy = gen[:, :, 0], gen[:, :, 1]
-        about_point = gen[:, :, 2] - (dx * fy - dy * fx)
-        sign = 1.0 if on_j else -1.0
-        force[:, k, :, 0] = sign * fx
-        force[:, k, :, 1] = sign * fy
-        couple[:, k] = sign * about_point
+    m, _, N = jac.shape
+    P, J = lam.shape[0], len(infos)
+    if J == 0:
+        return np.zeros((P, 0, N, 2)), np.zeros((P, 0, N))
+    on_j = np.array([info.body_j != GROUND for info in infos])
+    b = np.array([index[info.body_j if j else info.body_i] for info, j in zip(infos, on_j)])
+    width = max(len(rows[info.name]) for info in infos)
+    R = np.full((J, width), m)  # row m: the zero row
+    for k, info in enumerate(infos):
+        R[k, : len(rows[info.name])] = rows[info.name]
+    cols = 3 * b[:, None] + np.arange(3)
+    block = np.zeros((J, width, 3, N))
+    real = R < m
+    block[real] = jac[R[real][:, None], cols[np.nonzero(real)[0]]]  # (J, width, 3, N)
+    lam_ext = np.concatenate([lam, np.zeros((P, 1, N))], axis=1)
+    mult = lam_ext[:, R]  # (P, J, width, N)
+    gen = -np.sum(block[None] * mult[:, :, :, None, :], axis=2)  # (P, J, 3, N) on body b
+    dx = points[:, :, 0] - q[:, 3 * b].T  # (J, N)
+    dy = points[:, :, 1] - q[:, 3 * b + 1].T
+    fx, fy = gen[:, :, 0], gen[:, :, 1]
+    sign = np.where(on_j, 1.0, -1.0)[:, None]  # force on j: read from i and turned round when j is ground
+    force = np.stack([fx, fy], axis=-1) * sign[..., None]
+    couple = (gen[:, :, 2] - (dx * fy - dy * fx)) * sign
     return force, couple
