@@ -19,7 +19,7 @@ import pytest
 import sympy as sp
 
 from motionlaws import Axis, Segment, compile_axis
-from solver.kinematics import MM, JointCoordinate, PointX, PointY, ProgramMotion, solve_cycle
+from solver.kinematics import MM, PointX, PointY, ProgramMotion, solve_cycle
 from solver.loads import (
     BodyMass, BodyTorque, LinkageLoading, LoadsError, PointForce, drive_efforts_by_power, kinetic_energy,
     linkage_loads,
@@ -259,3 +259,16 @@ def test_a_model_that_is_not_driven_is_refused():
     result = solve_cycle(model, SPEED)
     with pytest.raises(LoadsError, match="no solved instants"):
         linkage_loads(result, LinkageLoading())
+
+
+def test_a_force_at_local_coordinates_equals_the_same_force_at_the_named_point():
+    """A load's point may be named or given as body-local (x, y): same point, same torque (definition)."""
+    model, named = masses_four_bar()
+    result = solve_cycle(model, SPEED)
+    local = LinkageLoading(named.masses, named.gravity, (PointForce("coupler", (0.08, 0.03), (30.0, -10.0)),), named.torques)
+    np.testing.assert_array_equal(linkage_loads(result, local).drives["motor"].effort,
+                                  linkage_loads(result, named).drives["motor"].effort)
+    # and the force matters: without it the torque differs by far more than rounding
+    bare = LinkageLoading(named.masses, named.gravity, (), named.torques)
+    assert np.max(np.abs(linkage_loads(result, bare).drives["motor"].effort
+                         - linkage_loads(result, named).drives["motor"].effort)) > 0.1

@@ -138,11 +138,7 @@ class LinkageLoading:
         for load in self.forces:
             label = load.name or f"{load.body}.{load.point if isinstance(load.point, str) else 'point'}"
             f_body.append(self._body(index, load.body, label, "body"))
-            if isinstance(load.point, str):
-                f_point.append(mechanism.point((load.body, load.point), label, "point") if load.point in
-                               mechanism.bodies[load.body].points else self._missing(mechanism, load, label))
-            else:
-                f_point.append(_numbers(load.point, 2, f"point of force {label!r}", label, "point"))
+            f_point.append(self._point(mechanism, load, label))
             f_force.append(_numbers(load.force, 2, f"force {label!r}", label, "force"))
         t_body, t_value = [], []
         for load in self.torques:
@@ -166,6 +162,12 @@ class LinkageLoading:
         return index[name]
 
     @staticmethod
-    def _missing(mechanism, load, label):
-        known = ", ".join(mechanism.bodies[load.body].points) or "none"
-        raise LoadsError(f"point: body {load.body!r} has no point {load.point!r} (points: {known})", label, "point")
+    def _point(mechanism, load: PointForce, label: str) -> tuple[float, float]:
+        """Body-local (x, y) in m of a force's point: a named point of its body, or given as numbers."""
+        if not isinstance(load.point, str):
+            return _numbers(load.point, 2, f"point of force {label!r}", label, "point")
+        points = mechanism.bodies[load.body].points
+        if load.point not in points:
+            known = ", ".join(points) or "none"
+            raise LoadsError(f"point: body {load.body!r} has no point {load.point!r} (points: {known})", label, "point")
+        return points[load.point]
