@@ -27,6 +27,7 @@ sequential (DESIGN §4):
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -50,6 +51,25 @@ from .system import System
 INSTANTS = 3600  # default instants per cycle: 0.1° of master angle
 NODE_SPACING = math.radians(2.0)  # from nodes this close the quintic Hermite guess is within ~1e-12 of the link lengths
 SCREEN_CONDITION = DEAD_POINT_CONDITION * 1e-3  # pivot estimate above this sends an instant to the exact check
+
+
+@dataclass
+class Nodes:
+    """Solved instants as arrays: master angles `theta` (K,) rad, and q, q', q'' each (n, K)."""
+
+    theta: np.ndarray
+    q: np.ndarray
+    dq: np.ndarray
+    ddq: np.ndarray
+
+    @classmethod
+    def of(cls, states: list[State]) -> "Nodes":
+        return cls(
+            np.array([s.theta for s in states]),
+            np.array([s.q for s in states]).T,
+            np.array([s.dq for s in states]).T,
+            np.array([s.ddq for s in states]).T,
+        )
 
 
 def solve_cycle(mechanism, speed: float, instants: int = INSTANTS, theta=None, drawn_at: float = 0.0) -> CycleResult:
@@ -118,7 +138,7 @@ class CycleSolver:
         nodes, stop_dense = self._densify(nodes, start)
         if stop_dense is not None:
             stop = stop_dense
-        end = nodes[-1].theta
+        end = nodes.theta[-1]
         count = int(np.searchsorted(theta, end, side="right"))
         fine = theta[:count]
         arrays, stop2 = self._fine(fine, nodes, start)
@@ -133,21 +153,20 @@ class CycleSolver:
     # -- stage 3 -------------------------------------------------------------------
     def _densify(self, nodes: list[State], start: State):
         """Fill the gaps between marched states with nodes at most NODE_SPACING apart, and solve
-        all of them (the marched ones again, to full tolerance) at once."""
+        all of them (the marched ones again, to full tolerance) at once; (`Nodes`, stop or None)."""
         system = self.system
+        coarse = Nodes.of(nodes)
         if len(nodes) == 1:
-            return nodes, None
-        theta = np.array([s.theta for s in nodes])
+            return coarse, None
+        theta = coarse.theta
         parts = np.maximum(1, np.ceil(np.diff(theta) / NODE_SPACING - 1e-9).astype(int))
         offset = np.concatenate([np.arange(p) / p for p in parts] + [np.zeros(1)])
         gap = np.append(np.repeat(np.arange(len(nodes) - 1), parts), len(nodes) - 1)
         upper = np.append(theta[1:], theta[-1])
         points = theta[gap] + offset * (upper[gap] - theta[gap])
-        Q = np.column_stack([s.q for s in nodes])
-        DQ = np.column_stack([s.dq for s in nodes])
-        DDQ = np.column_stack([s.ddq for s in nodes])
         drive = system.drive(points)
-        solved = newton(system, interpolate(theta, Q, DQ, DDQ, points), drive, system.elimination_plan())
+        guess = interpolate(theta, coarse.q, coarse.dq, coarse.ddq, points)
+        solved = newton(system, guess, drive, system.elimination_plan())
         dq, ddq = derivatives(system, solved, drive, orders=2)
         F = solved.factor
         ok = solved.converged & (F.det_sign == start.det_sign) & (F.condition <= SCREEN_CONDITION)
@@ -160,9 +179,9 @@ class CycleSolver:
         good[1:] &= link_ok
         good_gap = np.ones(len(nodes) - 1, dtype=bool)
         np.logical_and.at(good_gap, gap[:-1], good[:-1] & good[1:])
-        fresh = self._states(points, solved.q, dq, ddq, start)
         if good_gap.all():
-            return fresh, None
+            return Nodes(points, solved.q, dq, ddq), None
+        fresh = self._states(points, solved.q, dq, ddq, start)
         first = np.searchsorted(gap, np.arange(len(nodes)))  # index in `points` of each marched node
         out: list[State] = []
         for k in range(len(nodes) - 1):
@@ -177,10 +196,10 @@ class CycleSolver:
                 out.extend(marched)
                 if stop.state.theta > out[-1].theta:
                     out.append(stop.state)
-                return out, stop
+                return Nodes.of(out), stop
             out.extend(marched[:-1])  # its last state is node k + 1, taken from the batch or marched next
         out.append(fresh[-1] if good[-1] else self._resolved(nodes[-1]))
-        return out, None
+        return Nodes.of(out), None
 
     def _resolved(self, node: State) -> State:
         """A marched node solved again to full tolerance (it was solved to the guide tolerance)."""
@@ -192,16 +211,12 @@ class CycleSolver:
         return [State(float(t), q[:, i], dq[:, i], ddq[:, i], start.det_sign, math.nan) for i, t in enumerate(theta)]
 
     # -- stage 4 and 5 -------------------------------------------------------------
-    def _fine(self, fine: np.ndarray, nodes: list[State], start: State):
+    def _fine(self, fine: np.ndarray, nodes: Nodes, start: State):
         system = self.system
-        node_theta = np.array([s.theta for s in nodes])
-        Q = np.column_stack([s.q for s in nodes])
-        DQ = np.column_stack([s.dq for s in nodes])
-        DDQ = np.column_stack([s.ddq for s in nodes])
-        if len(nodes) == 1:
-            guess = np.repeat(Q, fine.size, axis=1)
+        if nodes.theta.size == 1:
+            guess = np.repeat(nodes.q, fine.size, axis=1)
         else:
-            guess = interpolate(node_theta, Q, DQ, DDQ, fine)
+            guess = interpolate(nodes.theta, nodes.q, nodes.dq, nodes.ddq, fine)
         drive = system.drive(fine)
         solved = newton(system, guess, drive, system.elimination_plan())
         dq, ddq, dddq = derivatives(system, solved, drive)
