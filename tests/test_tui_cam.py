@@ -315,7 +315,8 @@ async def test_editing_the_axis_changes_the_cam(press_file):
         after = rows(app)["pressure angle"]
         assert after["value"] == f"{fmt(math.degrees(a.max_pressure_angle.value))}°" != before
         assert after["at"] == shown_deg(a.max_pressure_angle.at)
-        await pilot.press(*["right"] * 43)  # 215°: on the 30 mm dwell
+        view(app).action_go(210.0)
+        await pilot.press("right")  # 215°: on the 30 mm dwell
         await settle(pilot)
         assert number_after(readout(app), "follower") == pytest.approx(30.0)
         await pilot.press("ctrl+z")  # undo in the Cam view: back to the file's cam
@@ -362,8 +363,8 @@ async def test_undercut_is_marked_with_a_symbol(tmp_path):
         assert f"× undercut {shown_deg(start)}–{shown_deg(end)}" in _plain(app.query_one(CamVerdicts))
         assert "✗ CHECK FAILED" in str(app.query_one("#cam-bar", Static).content)
         middle = math.degrees((start + end) / 2)
-        await pilot.press(*["right"] * int(middle // 5))
-        await pilot.press(*["shift+right"] * int(middle % 5))
+        view(app).action_go(middle - 1.0)
+        await pilot.press("shift+right")
         await settle(pilot)
         assert "× undercut here" in readout(app)
 
@@ -412,7 +413,10 @@ def test_cam_view_80x24(snap_compare, plain_environment):
 
     async def check(pilot):
         await settle(pilot)
-        await pilot.press("4", *["right"] * 32)
+        await pilot.press("4")
+        await settle(pilot)
+        view(app).action_go(150.0)
+        await pilot.press("right", "right")
         await settle(pilot)
         assert view(app).angle == 160.0 and rows(app)["pressure angle"]["verdict"] == "✓ within"
 

@@ -119,7 +119,8 @@ async def test_readout_follows_the_force_balance():
         await settle(pilot)
         # on the base circle at rest: only the preload
         assert number_after(readout(app), "contact force") == pytest.approx(STAMP["preload"])
-        await pilot.press(*["right"] * 43)  # 215°: at rest on the 20 mm dwell
+        view(app).action_go(210.0)
+        await pilot.press("right")  # 215°: at rest on the 20 mm dwell
         await settle(pilot)
         assert "at cam angle 215°" in readout(app)
         assert number_after(readout(app), "contact force") == pytest.approx(STAMP["preload"] + STAMP["rate"] * 20.0)
@@ -244,7 +245,10 @@ def test_loads_view_80x24(snap_compare, plain_environment):
 
     async def check(pilot):
         await settle(pilot)
-        await pilot.press("5", *["right"] * 49)
+        await pilot.press("5")
+        await settle(pilot)
+        view(app).action_go(240.0)
+        await pilot.press("right")
         await settle(pilot)
         assert view(app).angle == 245.0 and figures(app)["least contact force"]["verdict"] == "✓ kept"
 
@@ -256,7 +260,10 @@ def test_loads_view_oscillating_120x40(snap_compare, plain_environment):
 
     async def check(pilot):
         await settle(pilot)
-        await pilot.press("5", "full_stop", *["right"] * 18)
+        await pilot.press("5", "full_stop")
+        await settle(pilot)
+        view(app).action_go(85.0)
+        await pilot.press("right")
         await settle(pilot)
         assert view(app).item_name == "feed-cam" and view(app).angle == 90.0
 

@@ -30,7 +30,7 @@ from ..widgets.cam_data import CamEntry, readout, study_cams
 from ..widgets.cam_drawing import CELL_ASPECT, CamDrawing, legend, turning_words
 from ..widgets.cam_export import start_export
 from ..widgets.cam_plots import AnglePlot, pressure_angle_plot, radius_plot
-from ..widgets.cam_verdicts import CamVerdicts, angle
+from ..widgets.cam_verdicts import CamVerdicts, angle, show_text
 from . import register_view
 from .base import WorkbenchView
 
@@ -236,7 +236,7 @@ class CamView(WorkbenchView):
     def _refresh_angle(self) -> None:
         entry = self.entry
         self.query_one(CamDrawing).show(entry, self.angle)
-        self.query_one("#cam-readout", Static).update(self._readout_text(entry))
+        show_text(self.query_one("#cam-readout", Static), self._readout_text(entry))
 
     def _readout_text(self, entry: CamEntry | None) -> Text:
         if entry is None:

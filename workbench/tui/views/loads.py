@@ -28,6 +28,7 @@ from ...projectfile import Project
 from ..format import OK_STYLE, OVER_STYLE, WARN_STYLE, degrees
 from ..widgets import loads_data
 from ..widgets.cam_plots import AnglePlot
+from ..widgets.cam_verdicts import show_text
 from ..widgets.loads_data import LoadsItem, collect_loads, unshown_parts
 from . import register_view
 from .base import WorkbenchView
@@ -94,13 +95,13 @@ def nothing_text(project: Project | None) -> Text:
     """What to say when there are no loads to show, and how to get some."""
     text = Text()
     text.append("No loads to show for this project.\n\n", style="bold")
+    for line in pending_lines(project):
+        text.append_text(line)
+        text.append("\n\n")
     text.append("A spring-closed cam follower gets its contact force, jump speed, spring preload and "
                 "camshaft torque here when its [[cam]] table has a [cam.loads] table, for example:\n\n")
     text.append(LOADS_EXAMPLE + "\n\n", style="cyan")
-    text.append("then open the file again (ctrl+o). The README's Cams section lists every key.\n", style="dim")
-    for line in pending_lines(project):
-        text.append("\n")
-        text.append_text(line)
+    text.append("then open the file again (ctrl+o). The README's Cams section lists every key.", style="dim")
     return text
 
 
@@ -150,6 +151,7 @@ class LoadsView(WorkbenchView):
         """The item on view."""
         self.angle = 0.0
         """Cursor cam angle, deg."""
+        self._pending_cycle = 0
 
     def compose(self) -> ComposeResult:
         yield LoadsBar(id="loads-bar")
@@ -190,6 +192,9 @@ class LoadsView(WorkbenchView):
         if self.item_name not in names:
             self.item_name = names[0] if names else None
         self._refresh_all()
+        if self._pending_cycle:
+            step, self._pending_cycle = self._pending_cycle, 0
+            self.action_cycle(step)
 
     @property
     def item(self) -> LoadsItem | None:
@@ -244,7 +249,7 @@ class LoadsView(WorkbenchView):
             text.append(f"at cam angle {degrees(self.angle)}", style="bold")
             text.append(" (← →): ", style="dim")
             text.append(item.readout(self.angle))
-        self.query_one("#loads-readout", Static).update(text)
+        show_text(self.query_one("#loads-readout", Static), text)
 
     def _refresh_bar(self) -> None:
         bar = self.query_one(LoadsBar)
@@ -278,9 +283,11 @@ class LoadsView(WorkbenchView):
     # --- keys ---------------------------------------------------------------
 
     def check_action(self, action: str, parameters) -> bool | None:
-        """Cursor and picker keys only while there is something to show."""
-        if action in ("step", "go", "cycle") and not self.items:
-            return False
+        """Cursor and picker keys only while there is something to show (or on its way)."""
+        if action in ("step", "go"):
+            return bool(self.items)
+        if action == "cycle":
+            return bool(self.items) or self.items_for is not self.project
         return True
 
     def action_step(self, step: float) -> None:
@@ -293,6 +300,9 @@ class LoadsView(WorkbenchView):
         self._refresh_readout()
 
     def action_cycle(self, step: int) -> None:
+        if self.items_for is not self.project:  # still computing: the step applies when the items come
+            self._pending_cycle += step
+            return
         names = [i.name for i in self.items]
         if not names:
             return

@@ -106,6 +106,7 @@ class AnglePlot(MotionPlot):
         self.spec: PlotSpec | None = None
         self.cursor: float | None = None
         """Cursor cam angle in deg (None: no cursor)."""
+        self._line_sets: set[int] = set()
 
     def show_spec(self, spec: PlotSpec | None, cursor: float | None = None) -> None:
         self.spec, self.cursor = spec, cursor
@@ -133,10 +134,12 @@ class AnglePlot(MotionPlot):
         rows = max(1, self.size.height - self.margin_top - self.margin_bottom)
         self._y_tick_format.count = max(2, rows // ROWS_PER_TICK + 1)
         columns = max(8, self.size.width - self.margin_left - 2)
-        for line in spec.lines:
+        self._line_sets = set()
+        for line in sorted(spec.lines, key=lambda ref: ref.style == LIMIT_STYLE):  # limits last: on top
             if lo <= line.value <= hi:
                 self.plot([0.0, 360.0], [line.value, line.value], line_style=line.style,
                           hires_mode=HiResMode.BRAILLE)
+                self._line_sets.add(id(self._datasets[-1]))
         drawn = 0
         for curve in spec.curves:
             for piece in runs(curve.values, lo, hi):
@@ -151,8 +154,9 @@ class AnglePlot(MotionPlot):
         self.set_ylabel(escape(self.title))
 
     def _render_line_plot(self, dataset) -> None:
-        """Braille lines whose dots join those already in a cell (two lines sharing a row of cells
-        both stay visible; the later one gives the colour)."""
+        """Braille lines; a reference line's dots join those of another reference line in the same
+        cell (two limits sharing a row of cells both stay visible; the later gives the colour), while
+        a curve takes its cells over (so no line appears in the curve's colour)."""
         if dataset.hires_mode is not HiResMode.BRAILLE or dataset.x.size == 0:
             super()._render_line_plot(dataset)
             return
@@ -163,9 +167,10 @@ class AnglePlot(MotionPlot):
         size = canvas._canvas_size
         columns, rows, chars = braille_cells(x, y, size.width, size.height)
         buffer, styles = canvas._buffer, canvas._styles
+        merge = id(dataset) in self._line_sets
         for c, r, ch in zip(columns.tolist(), rows.tolist(), chars):
             old = buffer[r][c]
-            if len(old) == 1 and BRAILLE_BASE <= ord(old) < BRAILLE_BASE + 0x100:
+            if merge and len(old) == 1 and BRAILLE_BASE <= ord(old) < BRAILLE_BASE + 0x100:
                 ch = chr(ord(old) | ord(ch))
             buffer[r][c] = ch
             styles[r][c] = dataset.line_style

@@ -101,6 +101,16 @@ def radius_rows(entry: CamEntry) -> list[dict]:
     return out
 
 
+def show_text(static: Static, text: Text) -> None:
+    """Update a `Static` of automatic height, with a layout pass only when its wrapped height
+    changes (a readout that changes at every key must not re-lay the screen each time)."""
+    width = max(1, static.size.width)
+    lines = len(text.wrap(static.app.console, width)) if width > 1 else -1
+    layout = lines != getattr(static, "_shown_lines", None) or width == 1
+    static._shown_lines = lines
+    static.update(text, layout=layout)
+
+
 def trouble_lines(entry: CamEntry) -> list[str]:
     """Where the profile cannot be cut, in words (marked × and ◆ in the drawing)."""
     a = entry.study.analysis
