@@ -268,3 +268,20 @@ def test_loads_view_oscillating_120x40(snap_compare, plain_environment):
         assert view(app).item_name == "feed-cam" and view(app).angle == 90.0
 
     assert snap_compare(app, terminal_size=(120, 40), run_before=check)
+
+
+async def test_a_failing_source_is_said_and_the_others_still_show(monkeypatch):
+    def broken(project):
+        raise ValueError("singular matrix at 212°")
+
+    monkeypatch.setitem(loads_data.LOADS_SOURCES, "linkage", broken)
+    app = Workbench(load_project(preset_path("cam-press")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("5")
+        await settle(pilot)
+        assert [i.name for i in view(app).items] == ["stamp-cam", "feed-cam", "[[linkage]]"]
+        await pilot.press("comma")
+        await settle(pilot)
+        assert "✗ NOT COMPUTED" in str(app.query_one("#loads-bar", Static).content)
+        assert "singular matrix at 212°" in str(app.query_one("#loads-notes", Static).content)

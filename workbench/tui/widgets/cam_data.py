@@ -57,6 +57,8 @@ def study_cams(project: Project, points: int = DEFAULT_POINTS) -> list[CamEntry]
         except CamGeometryError as exc:
             problem = f"{exc.key}: {exc.message}" if exc.key else exc.message
             entries.append(CamEntry(spec, unit, None, problem))
+        except (ArithmeticError, ValueError, KeyError) as exc:  # said on screen, never a traceback
+            entries.append(CamEntry(spec, unit, None, f"the cam could not be studied ({exc})"))
     return entries
 
 

@@ -32,7 +32,7 @@ CURSOR_STYLE = "bold bright_white"
 LIMIT_STYLE = "red"  # limit lines; titles say "(red)" in words too
 WARN_LINE_STYLE = "yellow"  # a threshold that is not a limit (undercut, zero contact)
 ZERO_STYLE = "bright_black"
-TITLE_GAP = 2  # columns kept free after a title, so two plots' titles side by side stay apart
+TITLE_GAP = 1  # columns kept free after a title, so two plots' titles side by side stay apart
 PAD = 0.06  # share of the y range left free above and below the data
 RADIUS_CAP = 2.0  # the radius plot shows ± this many cam sizes; larger radii are near-flat anyway
 
@@ -208,7 +208,7 @@ def pressure_angle_plot(entry: CamEntry) -> PlotSpec:
     phi = np.degrees(a.pressure_angle)
     theta, phi = np.append(theta, 360.0), np.append(phi, phi[:1])
     largest = math.degrees(a.max_pressure_angle.value)
-    parts = ["pressure angle [deg]"]
+    parts = ["pressure angle [°]"]
     lines = [RefLine(0.0, ZERO_STYLE)]
     top = max(largest, 1.0)
     limit = study.limits.pressure_angle

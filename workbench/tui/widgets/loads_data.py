@@ -69,10 +69,15 @@ def register_loads_source(part_key: str, source: LoadsSource) -> LoadsSource:
 
 
 def collect_loads(project: Project) -> list[LoadsItem]:
-    """Every item of every registered source, in registration order."""
+    """Every item of every registered source, in registration order.  A source that fails gives
+    one item saying so (the others still show)."""
     items: list[LoadsItem] = []
-    for source in LOADS_SOURCES.values():
-        items += source(project)
+    for key, source in LOADS_SOURCES.items():
+        try:
+            items += source(project)
+        except Exception as exc:  # noqa: BLE001 - a source's fault is shown, never a traceback
+            items.append(LoadsItem(f"[[{key}]]", key, False, "✗ NOT COMPUTED", (), (), (),
+                                   (f"the loads of the [[{key}]] tables could not be computed: {exc}",)))
     return items
 
 
