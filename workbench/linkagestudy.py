@@ -34,9 +34,9 @@ from solver.kinematics import (
     SOLVED,
     CycleResult,
     TransmissionAngle,
-    output_peaks,
     solve_cycle,
 )
+from solver.kinematics.peaks import PEAK_CANDIDATE, refined_max
 
 from .linkagefile import LinkageSpec
 from .linkagemodel import BuiltLinkage, build_linkage
@@ -51,6 +51,9 @@ MIN_STRETCH_INSTANTS = 16  # fewest instants a stretch is analysed on (the peak 
 JUMP_SHARE = 1e-6  # a jump at a cut below this share of the output's largest |derivative| counts as none
 STRETCH = "stretch"  # status of a stretch's own result: part of a cycle, so its ends are not joined
 RIGHT_ANGLE = 0.5 * math.pi
+MAX_CANDIDATES = 8  # sampled maxima refined per peak: on a plateau (a constant-velocity stretch) every
+#                     sample is within PEAK_CANDIDATE of the best, and each would get its own local solve
+STILL = 1e-9  # per rad^k, in units of the linkage's size (lengths) or rad: a signal this small does not move
 
 
 @dataclass(frozen=True)
@@ -278,6 +281,44 @@ def _first_max(items):
     return best
 
 
+def _refined(view, output, signal: np.ndarray, order: int, sign: float, still: float) -> tuple[float, float]:
+    """(max of sign·value (order 0) or of |derivative|, master deg): the solver's refined search
+    (solver.kinematics.peaks.refined_max) on at most MAX_CANDIDATES sampled maxima.
+
+    A signal that does not move (a point on a straight guide, a slider's angle) is taken as
+    sampled: its "maxima" would be rounding noise.
+    """
+    y = sign * signal if order == 0 else np.abs(signal)
+    spread = np.ptp(signal) if order == 0 else np.max(np.abs(signal))
+    k = int(np.argmax(y))
+    if spread <= still:
+        return float(y[k]), math.degrees(view.theta[k]) % FULL_TURN
+    periodic = view.success and y.size > 2
+    left, right = np.roll(y, 1), np.roll(y, -1)
+    if not periodic:
+        left[0], right[-1] = -np.inf, -np.inf
+    candidates = np.flatnonzero((y >= left) & (y >= right) & (y >= y[k] * PEAK_CANDIDATE))
+    if candidates.size > MAX_CANDIDATES:  # keep the best few; mask the rest below every candidate
+        keep = candidates[np.argsort(y[candidates])[::-1][:MAX_CANDIDATES]]
+        floor = np.min(y) - 1.0
+        masked = np.full_like(y, floor)
+        masked[keep] = y[keep]
+        signal = sign * masked if order == 0 else masked
+    value, at = refined_max(view, output, signal, order, sign)
+    return value, math.degrees(at) % FULL_TURN
+
+
+def _output_peaks(view, output, still_length: float):
+    """(highest, lowest, {quantity: (peak, at)}) of an output over a view, SI, master deg."""
+    curve = view.output(output)
+    still = still_length if curve.unit == "m" else STILL
+    high = _refined(view, output, curve.value, 0, 1.0, still)
+    low = _refined(view, output, curve.value, 0, -1.0, still)
+    peaks = {q: _refined(view, output, curve.derivative(k), k, 1.0, still * (2 * math.pi * view.speed / 60) ** k)
+             for k, q in enumerate(QUANTITIES, start=1)}
+    return high, low, peaks, curve
+
+
 def study_output(solution: LinkageSolution, name: str, limits: Limits) -> OutputStudy:
     """Extremes, peaks (true maxima), jumps, limit checks and max speed of one output of a solved cycle."""
     output = solution.built.outputs[name]
@@ -288,13 +329,13 @@ def study_output(solution: LinkageSolution, name: str, limits: Limits) -> Output
     highs, lows, peaks = [], [], {q: [] for q in QUANTITIES}
     largest = np.zeros(3)  # largest |g'|, |g''|, |g'''| per rad^k seen
     folds = []
+    still = STILL * solution.built.mechanism.length_scale()
     for view, _ in _views(solution):
-        p = output_peaks(view, output)
-        highs.append((p.maximum.value, p.maximum.at))
-        lows.append((-p.minimum.value, p.minimum.at))
+        high, low, found, curve = _output_peaks(view, output, still)
+        highs.append(high)
+        lows.append(low)
         for q in QUANTITIES:
-            peaks[q].append((p.peaks[q].value, p.peaks[q].at))
-        curve = view.output(output)
+            peaks[q].append(found[q])
         largest = np.maximum(largest, [np.max(np.abs(d)) for d in (curve.d1, curve.d2, curve.d3)])
         folds += _folds(view, output)
     jumps = []
@@ -307,8 +348,8 @@ def study_output(solution: LinkageSolution, name: str, limits: Limits) -> Output
         if dv or da:
             jumps.append(OutputJump(at, dv * omega * k_unit, da * omega**2 * k_unit))
         if solution.pieces[k].stretch.rest:
-            highs.append((first[0], at))
-            lows.append((-first[0], at))
+            highs.append((float(first[0]), at))
+            lows.append((-float(first[0]), at))
     high, low = _first_max(sorted(highs, key=_angle)), _first_max(sorted(lows, key=_angle))
     out = {q: Peak(v * k_unit, at) for q, (v, at) in ((q, _first_max(sorted(peaks[q], key=_angle))) for q in QUANTITIES)}
     velocity_jumps = [(abs(j.velocity_jump), j.at) for j in jumps if j.velocity_jump]
