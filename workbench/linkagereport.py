@@ -22,12 +22,11 @@ from solver.kinematics import DEAD_POINT, NOT_ASSEMBLED, NOT_DRIVEN, SOLVED
 
 from . import axisreport  # a module reference: axisreport may still be loading (it imports projectfile)
 from .linkagefile import describe, find_linkage, linkage_specs, target_unit
-from .linkagemodel import LinkageFault
-from .linkagestudy import FULL_TURN, QUANTITIES, LinkageStudy, OutputStudy, output_table, study_linkage
-from .projectfile import Project
 from .sections import CHECK_SECTIONS, TABLE_SOURCES
 from .tomlcheck import ProjectError
 
+FULL_TURN = 360.0  # master degrees per cycle
+QUANTITIES = ("velocity", "acceleration", "jerk")
 STATUS_WORDS = {SOLVED: "solved", DEAD_POINT: "DEAD POINT", NOT_ASSEMBLED: "NOT ASSEMBLED", NOT_DRIVEN: "NOT DRIVEN"}
 POWER = {"velocity": "/s", "acceleration": "/s²", "jerk": "/s³"}
 LEAST_TRANSMISSION = 40.0  # deg: common practice (e.g. Norton, Design of Machinery, ch. 4 gives it as a rule of thumb)
@@ -53,7 +52,7 @@ def _peak_json(peak, with_infinite: bool) -> dict:
     return entry
 
 
-def output_json(spec, spec_output, study: OutputStudy | None) -> dict:
+def output_json(spec, spec_output, study) -> dict:
     """One output: its range, peaks (unit/s^k), limits, share used, max speed and jumps."""
     doc = {
         "name": spec_output.name,
@@ -89,7 +88,7 @@ def _dof_json(dof) -> dict | None:
     }
 
 
-def linkage_json(study: LinkageStudy) -> dict:
+def linkage_json(study) -> dict:
     result = study.solution.result
     dead = result.dead_point
     by_name = {o.name: o for o in study.outputs}
@@ -130,7 +129,7 @@ def _verdict(check) -> Text:
     return axisreport.verdict_text(check.used) if check else Text("no limit", style="dim")
 
 
-def output_block(linkage: str, spec_output, study: OutputStudy) -> Group:
+def output_block(linkage: str, spec_output, study) -> Group:
     """One output: its range and its peaks against the limits, in words."""
     unit = study.unit
     state = Text("within limits", style="green") if study.ok else Text("LIMIT EXCEEDED", style="bold red")
@@ -168,7 +167,7 @@ def output_block(linkage: str, spec_output, study: OutputStudy) -> Group:
     return Group(*lines)
 
 
-def _stopped(study: LinkageStudy) -> list:
+def _stopped(study) -> list:
     result = study.solution.result
     if study.status == NOT_DRIVEN:
         dof = result.dof
@@ -197,7 +196,7 @@ def driver_words(spec, driver) -> str:
     return f"{describe(driver.target)} follows axis {driver.axis}{start}"
 
 
-def linkage_block(study: LinkageStudy) -> Group:
+def linkage_block(study) -> Group:
     """One linkage: how the solve went, then each output."""
     name = study.spec.name
     if study.status == SOLVED:
@@ -224,16 +223,17 @@ def linkage_block(study: LinkageStudy) -> Group:
 # --- the check section and the table source -------------------------------------------------
 
 
-def linkage_section(project: Project):
+def linkage_section(project):
     """`check`'s linkage section: ("linkages", list of JSON, Rich renderables, ok), or None."""
     specs = linkage_specs(project)
     if not specs:
         return None
+    from . import linkagemodel, linkagestudy  # noqa: PLC0415 - parts.py loads this module while they may be loading
     docs, renderables, ok = [], [], True
     for spec in specs:
         try:
-            study = study_linkage(project, spec)
-        except LinkageFault as exc:  # only after an edit: a loaded file has been checked
+            study = linkagestudy.study_linkage(project, spec)
+        except linkagemodel.LinkageFault as exc:  # only after an edit: a loaded file has been checked
             problem = f'{exc.where}: key "{exc.key}": {exc.problem}' if exc.key else f"{exc.where}: {exc.problem}"
             docs.append({"name": spec.name, "ok": False, "status": "invalid", "message": problem})
             renderables.append(Text(f"linkage {spec.name}  CANNOT BE BUILT: {problem}", style="bold red"))
@@ -245,7 +245,7 @@ def linkage_section(project: Project):
     return "linkages", docs, renderables, ok
 
 
-def output_csv(project: Project, name: str, step: float) -> str | None:
+def output_csv(project, name: str, step: float) -> str | None:
     """CSV motion table of linkage output "LINKAGE.OUTPUT", or None for a name of no linkage."""
     linkage, dot, output = name.partition(".")
     spec = find_linkage(project, linkage) if dot else None
@@ -255,11 +255,13 @@ def output_csv(project: Project, name: str, step: float) -> str | None:
     if spec.output(output) is None:
         known = ", ".join(f"{spec.name}.{o.name}" for o in spec.outputs) or "none"
         raise ProjectError(project.path, where, "--axis", f"no output {output!r} (outputs: {known})")
+    from . import linkagemodel, linkagestudy  # noqa: PLC0415 - as in linkage_section
+
     count = int(math.ceil(FULL_TURN / step - 1e-9))
     theta = np.round(np.arange(count) * step, 9)
     try:
-        solution, s, v, a, j = output_table(project, spec, output, theta)
-    except LinkageFault as exc:
+        solution, s, v, a, j = linkagestudy.output_table(project, spec, output, theta)
+    except linkagemodel.LinkageFault as exc:
         raise ProjectError(project.path, exc.where, exc.key, exc.problem) from None
     if s is None:
         raise ProjectError(project.path, where, None, f"{solution.result.message}: no table can be written")
