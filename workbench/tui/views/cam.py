@@ -16,7 +16,7 @@ from rich.text import Text
 from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.containers import Horizontal, VerticalScroll
 from textual.message import Message
 from textual.widgets import Static
 from textual.worker import get_current_worker
@@ -107,10 +107,14 @@ class CamView(WorkbenchView):
     """
 
     BINDINGS = [
-        Binding("right", "step(5)", "+5°", key_display="→", priority=True, tooltip="Turn the cam 5° on"),
-        Binding("left", "step(-5)", "-5°", key_display="←", priority=True, tooltip="Turn the cam 5° back"),
-        Binding("shift+right", "step(1)", "+1°", show=False, priority=True, tooltip="Turn the cam 1° on"),
-        Binding("shift+left", "step(-1)", "-1°", show=False, priority=True, tooltip="Turn the cam 1° back"),
+        Binding("right", f"step({COARSE_STEP:g})", f"+{COARSE_STEP:g}°", key_display="→", priority=True,
+                tooltip=f"Turn the cam {COARSE_STEP:g}° on"),
+        Binding("left", f"step({-COARSE_STEP:g})", f"-{COARSE_STEP:g}°", key_display="←", priority=True,
+                tooltip=f"Turn the cam {COARSE_STEP:g}° back"),
+        Binding("shift+right", f"step({FINE_STEP:g})", f"+{FINE_STEP:g}°", show=False, priority=True,
+                tooltip=f"Turn the cam {FINE_STEP:g}° on"),
+        Binding("shift+left", f"step({-FINE_STEP:g})", f"-{FINE_STEP:g}°", show=False, priority=True,
+                tooltip=f"Turn the cam {FINE_STEP:g}° back"),
         Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Cam angle back to 0°"),
         Binding("w", "worst", "Worst spot", tooltip="Turn to the largest pressure angle, the least radius, "
                 "then any undercut, cusp or corner, in turn"),

@@ -37,6 +37,8 @@ for _name in loads_data.SOURCE_MODULES:  # each registers its source on import
     if importlib.util.find_spec(f"{loads_data.__package__}.{_name}") is not None:
         importlib.import_module(f"{loads_data.__package__}.{_name}")
 
+COARSE_STEP = 5.0  # deg per ← →
+FINE_STEP = 1.0  # deg per shift+← →
 MIN_PLOT_ROWS = 7  # least rows of the plots; they take what the figures leave
 PLOT_SHARE = 0.6  # but no more than this share of the view
 BODY_ROWS = 12  # rows the figures and notes need before an item is known
@@ -120,10 +122,14 @@ class LoadsView(WorkbenchView):
     """
 
     BINDINGS = [
-        Binding("right", "step(5)", "+5°", key_display="→", priority=True, tooltip="Cursor 5° later in the cycle"),
-        Binding("left", "step(-5)", "-5°", key_display="←", priority=True, tooltip="Cursor 5° earlier in the cycle"),
-        Binding("shift+right", "step(1)", "+1°", show=False, priority=True, tooltip="Cursor 1° later"),
-        Binding("shift+left", "step(-1)", "-1°", show=False, priority=True, tooltip="Cursor 1° earlier"),
+        Binding("right", f"step({COARSE_STEP:g})", f"+{COARSE_STEP:g}°", key_display="→", priority=True,
+                tooltip=f"Cursor {COARSE_STEP:g}° later in the cycle"),
+        Binding("left", f"step({-COARSE_STEP:g})", f"-{COARSE_STEP:g}°", key_display="←", priority=True,
+                tooltip=f"Cursor {COARSE_STEP:g}° earlier in the cycle"),
+        Binding("shift+right", f"step({FINE_STEP:g})", f"+{FINE_STEP:g}°", show=False, priority=True,
+                tooltip=f"Cursor {FINE_STEP:g}° later"),
+        Binding("shift+left", f"step({-FINE_STEP:g})", f"-{FINE_STEP:g}°", show=False, priority=True,
+                tooltip=f"Cursor {FINE_STEP:g}° earlier"),
         Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Cursor to cam angle 0°"),
         Binding("comma", "cycle(-1)", "Prev", key_display=",", show=False, tooltip="Show the previous loaded part"),
         Binding("full_stop", "cycle(1)", "Next", key_display=".", show=False, tooltip="Show the next loaded part"),
@@ -205,7 +211,7 @@ class LoadsView(WorkbenchView):
         self._refresh_bar()
 
     def _size_plots(self) -> None:
-        """The plots get what the figures and notes leave (within `PLOT_ROWS` and a share of the height)."""
+        """The plots get what the figures and notes leave (at least `MIN_PLOT_ROWS`, at most `PLOT_SHARE`)."""
         h = self.size.height
         if not h:
             return
