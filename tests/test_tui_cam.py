@@ -369,6 +369,29 @@ async def test_undercut_is_marked_with_a_symbol(tmp_path):
         assert "× undercut here" in readout(app)
 
 
+async def test_cusp_of_a_flat_face_is_marked_with_a_symbol():
+    # A translating flat face has a cusp where Rb + s + s'' ≤ 0 (DESIGN §5): on a 20 mm base circle the
+    # stripper's 8 mm poly345 strokes over 60° decelerate harder than that (Ca = 5.774, handbook).
+    project = loads_project(preset_path("cam-press").read_text().replace("base_radius = 45.0", "base_radius = 20.0"))
+    program = project.programs["stripper"]
+    theta = np.linspace(0.0, 360.0, 36001)
+    s, _, s2, _ = program.master(theta)
+    assert np.min(20.0 + s + s2) < 0.0  # the textbook condition, straight from the motion
+    app = Workbench(project)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("4", "comma")
+        await settle(pilot)
+        assert view(app).cam_name == "stripper-cam"
+        assert rows(app)["cusp"]["verdict"] == "✗ CUSP"
+        assert app.query_one(CamDrawing).marks[TROUBLE_MARK] > 0
+        assert "× cusp" in _plain(app.query_one(CamVerdicts))
+        worst = dict(view(app).spots())
+        view(app).action_go(worst["cusp"] + 1.0)
+        await settle(pilot)
+        assert "× cusp here" in readout(app)
+
+
 def _plain(widget) -> str:
     """The text a Static shows, rendered to plain lines."""
     from rich.console import Console

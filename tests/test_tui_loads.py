@@ -24,6 +24,7 @@ from textual.widgets import Input, Static
 from solver.loads import FollowerLoad, follower_forces, preload_for_margin, scaled_motion
 from workbench.app import Workbench
 from workbench.axisreport import fmt
+from workbench.editing import set_speed
 from workbench.presets import preset_path
 from workbench.projectfile import load_project, loads_project
 from workbench.tui.views.loads import LOADS_EXAMPLE, FigureTable, LoadsView
@@ -176,6 +177,23 @@ async def test_editing_the_machine_speed_changes_the_loads(tmp_path):
         assert after == f"{fmt(forces.peak_torque)} N·m" != before
         assert figures(app)["max speed without jump"]["verdict"] == "✓ now 150 cycles/min"
         assert "150 cycles/min" in str(app.query_one("#loads-bar", Static).content)
+
+
+async def test_above_the_jump_speed_the_follower_is_said_to_jump():
+    project = set_speed(load_project(preset_path("cam-press")), 500.0)
+    forces = follower_forces(scaled_motion(project.programs["stamp"], 1e-3), stamp_load(), 500.0)
+    assert forces.jumps and forces.jump_speed < 500.0  # the speed above the highest without jump
+    app = Workbench(project)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("5")
+        await settle(pilot)
+        shown = figures(app)
+        assert shown["least contact force"]["value"] == f"{fmt(forces.min_contact)} N"
+        assert shown["least contact force"]["verdict"] == "✗ LOST: the follower jumps"
+        assert shown["margin wanted"]["verdict"].startswith("✗ NOT MET")
+        assert shown["max speed without jump"]["verdict"] == "✗ now 500 cycles/min"
+        assert "✗ CONTACT AT RISK" in str(app.query_one("#loads-bar", Static).content)
 
 
 async def test_a_linkage_without_loads_is_named(monkeypatch):
