@@ -241,9 +241,9 @@ BAD = [
                          'axis = [1.0, 0.0]\n\n[[linkage.driver]]\nname = "motor"\njoint = "O"\naxis = "nope"'),
      ['driver "motor"', 'key "axis"', "no axis 'nope' in this file (axes: swing, push)"]),
     (lambda t: t.replace('joint = "O"\nturns = 1.0', 'joint = "O"\naxis = "push"'),
-     ['driver "motor"', 'key "axis"', "axis 'push' is in mm, but joint O is in deg"]),
+     ['driver "motor"', 'key "axis"', "axis 'push' is in mm, but the angle at pin O is in deg"]),
     (lambda t: t.replace('joint = "O"\nturns = 1.0', 'joint = "slide"\naxis = "swing"'),
-     ['driver "motor"', 'key "axis"', "axis 'swing' is in deg, but joint slide is in mm"]),
+     ['driver "motor"', 'key "axis"', "axis 'swing' is in deg, but the travel on slider slide is in mm"]),
     (lambda t: t.replace('joint = "O"\nturns = 1.0', 'joint = "O"\nturns = 0.5'),
      ['driver "motor"', 'key "turns"', "whole number"]),
     (lambda t: t.replace('joint = "O"\nturns = 1.0', 'joint = "slide"\nturns = 1.0'),
@@ -343,3 +343,16 @@ def test_loads_table_goes_to_a_registered_reader_and_round_trips(monkeypatch):
     with pytest.raises(ProjectError) as info:
         loads_project(GOOD + "\n[linkage.loads]\ncrnk = 0.8\n", "rig.toml")
     assert 'linkage "L", loads' in info.value.message and 'key "crnk"' in info.value.message
+
+
+def test_the_readme_example_reads_and_matches_the_preset():
+    from pathlib import Path
+
+    readme = (Path(__file__).resolve().parent.parent / "README.md").read_text()
+    section = readme[readme.index("## Linkages"):]
+    example = section[section.index("```toml") + len("```toml"): section.index("```", section.index("```toml") + 7)]
+    text = '''version = 1\n\n[machine]\nspeed = 80\n''' + example
+    spec = linkage_specs(loads_project(text, "README.md"))[0]
+    preset = linkage_specs(load_project(preset_path("slider-crank")))[0]
+    assert spec.bodies == preset.bodies and spec.joints == preset.joints and spec.drivers == preset.drivers
+    assert spec.outputs == preset.outputs[:1]

@@ -181,9 +181,15 @@ def target_unit(spec: LinkageSpec, target: Target) -> str:
     return "deg"
 
 
-def describe(target: Target) -> str:
-    """The coordinate in words: "joint slide", "angle of rocker", "x of slider.B"."""
+def describe(target: Target, spec: LinkageSpec | None = None) -> str:
+    """The coordinate in words: "travel on slider slide", "angle at pin O", "angle of rocker",
+    "x of slider.B" (with `spec`, a joint is named by its kind)."""
     if target.kind == "joint":
+        kind = spec.joint(target.of).kind if spec is not None and spec.joint(target.of) else None
+        if kind == "slider":
+            return f"travel on slider {target.of}"
+        if kind == "pin":
+            return f"angle at pin {target.of}"
         return f"joint {target.of}"
     if target.kind == "angle":
         return f"angle of {target.of}"

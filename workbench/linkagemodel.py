@@ -109,7 +109,7 @@ def build_linkage(project: Project, spec: LinkageSpec, guesses: dict | None = No
     """
     for driver in spec.drivers:
         if driver.axis is not None:
-            fault = axis_fault(project, driver.axis, target_unit(spec, driver.target), describe(driver.target))
+            fault = axis_fault(project, driver.axis, target_unit(spec, driver.target), f"the {describe(driver.target, spec)}")
             if fault is not None:
                 raise LinkageFault(f'{spec.label}, driver "{driver.name}"', "axis", fault)
     m = Mechanism(spec.name)

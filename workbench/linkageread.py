@@ -246,21 +246,21 @@ class _LinkageReader:
             raise d.error("name", "is used by an earlier driver: names must be unique")
         target = self.target(d, DRIVEN)
         spec = LinkageSpec("", (), (), tuple(self.joints.values()))
-        unit = target_unit(spec, target)
+        unit, what = target_unit(spec, target), describe(target, spec)
         if d.has("axis") == d.has("turns"):
             raise d.error("axis", "give exactly one of axis (follow an axis) and turns (steady turning)")
         offset = d.number("offset")
         if d.has("turns"):
             turns = d.number("turns")
             if unit != "deg":
-                raise d.error("turns", f"turns an angle, but {describe(target)} is in {unit}: follow an axis instead")
+                raise d.error("turns", f"turns an angle, but the {what} is in {unit}: follow an axis instead")
             if turns == 0.0 or abs(turns - round(turns)) > WHOLE:
                 raise d.error("turns", f"must be a whole number of turns other than 0 (the linkage repeats every "
                                        f"cycle), got {turns!r}")
             d.done()
             return DriverSpec(name, target, turns=turns, offset=offset)
         axis = d.text("axis")
-        fault = axis_fault(self.project, axis, unit, describe(target))
+        fault = axis_fault(self.project, axis, unit, f"the {what}")
         if fault is not None:
             raise d.error("axis", fault)
         d.done()

@@ -57,7 +57,7 @@ def output_json(spec, spec_output, study) -> dict:
     doc = {
         "name": spec_output.name,
         "table": f"{spec.name}.{spec_output.name}",
-        "of": describe(spec_output.target),
+        "of": describe(spec_output.target, spec),
         "unit": target_unit(spec, spec_output.target),
         "ok": study is not None and study.ok,
         "limits": {q: v for q, v in spec_output.limits.items() if v is not None},
@@ -129,14 +129,14 @@ def _verdict(check) -> Text:
     return axisreport.verdict_text(check.used) if check else Text("no limit", style="dim")
 
 
-def output_block(linkage: str, spec_output, study) -> Group:
+def output_block(spec, spec_output, study) -> Group:
     """One output: its range and its peaks against the limits, in words."""
     unit = study.unit
     state = Text("within limits", style="green") if study.ok else Text("LIMIT EXCEEDED", style="bold red")
     if not study.checks:
         state = Text("no limits set", style="dim")
-    head = Text.assemble("  ", (f"output {linkage}.{spec_output.name}", "bold"),
-                         f"  {describe(spec_output.target)} [{unit}]  ", state)
+    head = Text.assemble("  ", (f"output {spec.name}.{spec_output.name}", "bold"),
+                         f"  {describe(spec_output.target, spec)} [{unit}]  ", state)
     table = _table((("", "left"), ("value", "right"), ("at [deg]", "right"), ("limit", "right"),
                     ("used", "right"), ("verdict", "left")))
     table.add_row(Text(f"lowest [{unit}]"), fmt(study.minimum.value), fmt(_at(study.minimum.at), 5), "", "", "")
@@ -185,15 +185,17 @@ def _stopped(study) -> list:
 
 
 def driver_words(spec, driver) -> str:
-    """What a driver does, in words: "joint O2 turns once per cycle from 0°"."""
+    """What a driver does, in words: "turns pin O2 once per cycle, from 0°"."""
     unit = target_unit(spec, driver.target)
     offset = driver.offset or 0.0
+    thing = describe(driver.target, spec)
     if driver.turns is not None:
         turns = int(round(driver.turns))
-        count = {1: "once", -1: "once backwards"}.get(turns, f"{turns} times" if turns > 0 else f"{-turns} times backwards")
-        return f"{describe(driver.target)} turns {count} per cycle from {fmt(offset)}°"
+        count = {1: "once", -1: "once backwards"}.get(turns, f"{abs(turns)} times" + (" backwards" if turns < 0 else ""))
+        what = thing.replace("angle at ", "").replace("angle of ", "")
+        return f"turns {what} {count} per cycle, from {fmt(offset)}°"
     start = f", offset {fmt(offset)} {unit}" if offset else ""
-    return f"{describe(driver.target)} follows axis {driver.axis}{start}"
+    return f"the {thing} follows axis {driver.axis}{start}"
 
 
 def linkage_block(study) -> Group:
@@ -216,7 +218,7 @@ def linkage_block(study) -> Group:
     if not study.spec.outputs:
         lines.append(Text("  no outputs: add a [[linkage.output]] to see its peaks", style="dim"))
     for o in study.spec.outputs:
-        lines.append(output_block(name, o, by_name[o.name]))
+        lines.append(output_block(study.spec, o, by_name[o.name]))
     return Group(*lines)
 
 
