@@ -562,7 +562,20 @@ def test_an_under_driven_linkage_reports_its_free_motion(tmp_path, capsys):
     assert set(dof["free"][0]["bodies"]) == {"crank", "coupler", "rocker"}
     assert set(dof["free"][0]["joints"]) == {"O2", "A", "B", "O4"}
     code, out, _ = run(capsys, "check", str(path))
-    assert code == 1 and "NOT DRIVEN" in out and "free motion 1: moves crank, coupler, rocker" in out
+    assert code == 1 and "NOT DRIVEN: 1 free degree(s) of freedom" in out
+    assert "free motion 1: moves crank, coupler, rocker" in out
+
+
+def test_a_linkage_driven_twice_is_over_constrained(tmp_path, capsys):
+    path = tmp_path / "twice.toml"
+    path.write_text(GOOD.replace('[[linkage.output]]\nname = "stroke"',
+                                 '[[linkage.driver]]\nname = "second"\nangle = "crank"\nturns = 1.0\n\n'
+                                 '[[linkage.output]]\nname = "stroke"', 1))
+    code, doc = check_doc(capsys, path)
+    dof = doc["linkages"][0]["dof"]
+    assert code == 1 and dof["dof"] == 0 and dof["redundant"] == 1 and set(dof["dependent"]) == {"motor", "second"}
+    code, out, _ = run(capsys, "check", str(path))
+    assert "OVER-CONSTRAINED" in out and "depend on others among: motor, second" in out
 
 
 def test_a_linkage_that_cannot_be_assembled_says_so(tmp_path, capsys):

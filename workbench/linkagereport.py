@@ -29,7 +29,7 @@ FULL_TURN = 360.0  # master degrees per cycle
 QUANTITIES = ("velocity", "acceleration", "jerk")
 STATUS_WORDS = {SOLVED: "solved", DEAD_POINT: "DEAD POINT", NOT_ASSEMBLED: "NOT ASSEMBLED", NOT_DRIVEN: "NOT DRIVEN"}
 POWER = {"velocity": "/s", "acceleration": "/s²", "jerk": "/s³"}
-LEAST_TRANSMISSION = 40.0  # deg: common practice (e.g. Norton, Design of Machinery, ch. 4 gives it as a rule of thumb)
+LEAST_TRANSMISSION = 40.0  # deg: common practice (a rule of thumb, no single source)
 NEAR_ZERO = 1e-9  # a displayed value this small (in its unit) is shown as 0
 
 
@@ -206,7 +206,11 @@ def linkage_block(study) -> Group:
             Text("solved, LIMIT EXCEEDED", style="bold red")
     else:
         words = STATUS_WORDS.get(study.status, study.status)
-        where = "" if study.status == NOT_DRIVEN else f" at master {fmt(study.stop_at, 5)}°"
+        where = f" at master {fmt(study.stop_at, 5)}°"
+        dof = study.solution.result.dof
+        if study.status == NOT_DRIVEN:
+            where = f": {dof.dof} free degree(s) of freedom" if dof.dof else ""
+            words = words if dof.dof else "OVER-CONSTRAINED"
         state = Text(f"{words}{where}", style="bold red")
     lines = [Text.assemble((f"linkage {name}", "bold"), "  ", state)]
     for d in study.spec.drivers:

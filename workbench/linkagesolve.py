@@ -117,8 +117,11 @@ def _grid(stretch: Stretch, theta: np.ndarray | None, instants: int) -> tuple[np
 
 
 def solve_linkage(project, spec: LinkageSpec, theta=None, instants: int = INSTANTS) -> LinkageSolution:
-    """Solve one cycle at master angles `theta` (rad, increasing, in [0, 2π)) or, for analysis,
-    on `instants` per cycle (every stretch's ends included).  Raises `LinkageFault` (linkagemodel)."""
+    """Solve one cycle at master angles `theta` (rad, increasing, in [0, 2π); others are not solved)
+    or, for analysis, on about `instants` per cycle with every stretch's ends included.
+
+    Raises `LinkageFault` (linkagemodel) when the linkage cannot be built.
+    """
     built = build_linkage(project, spec)
     speed = project.speed
     cut = stretches(project, spec)
@@ -143,17 +146,17 @@ def solve_linkage(project, spec: LinkageSpec, theta=None, instants: int = INSTAN
         if result.status != SOLVED:
             break
         guesses = _end_state(result, bodies)
-    return LinkageSolution(built, _merge(pieces, theta, speed), pieces)
+    return LinkageSolution(built, _merge(pieces, theta, speed, instants), pieces)
 
 
-def _merge(pieces: list[Piece], theta, speed: float) -> CycleResult:
+def _merge(pieces: list[Piece], theta, speed: float, instants: int) -> CycleResult:
     """One `CycleResult` over the instants asked for (stretches at rest held at their start)."""
     rows = {k: [] for k in ("theta", "q", "dq", "ddq", "dddq")}
     for piece in pieces:
         r = piece.result
         if piece.stretch.rest and r.status == SOLVED:
             if theta is None:
-                t, _ = _grid(piece.stretch, None, 0)
+                t, _ = _grid(piece.stretch, None, instants)
             else:
                 lo, hi = math.radians(piece.stretch.start), math.radians(piece.stretch.end)
                 t = theta[(theta >= lo) & (theta < hi)]
@@ -168,7 +171,7 @@ def _merge(pieces: list[Piece], theta, speed: float) -> CycleResult:
     last = pieces[-1].result
     n = len(last.coordinates)
     arrays = {k: (np.concatenate(v) if v else np.empty((0,) if k == "theta" else (0, n))) for k, v in rows.items()}
-    requested = INSTANTS if theta is None else theta.size
+    requested = instants if theta is None else theta.size
     return CycleResult(last.status, last.message, arrays["theta"], arrays["q"], arrays["dq"], arrays["ddq"],
                        arrays["dddq"], last.coordinates, speed, requested, pieces[0].result.dof, last.dead_point,
                        last.system)
