@@ -287,6 +287,20 @@ def test_a_transmission_angle_passing_90_degrees_has_infinite_acceleration(capsy
     assert mu["range"]["max"]["value"] == pytest.approx(90.0, abs=1e-3)
 
 
+def test_a_transmission_angle_falling_to_zero_turns_back_there(tmp_path, capsys):
+    """In the test rig μ at B is taken between the rod and the slide: it is 0 where the rod lies
+    level, A at the slide's height: 40 sin(θ + 30°) = 10 (crank 40 mm, offset 30°, slide at 10 mm)."""
+    path = tmp_path / "rig.toml"
+    path.write_text(GOOD)
+    _, doc = check_doc(capsys, path)
+    mu = output_doc(doc, "L", "mu")
+    level = sorted((math.degrees(x) - 30.0) % 360 for x in (math.asin(0.25), math.pi - math.asin(0.25)))
+    assert mu["range"]["min"]["value"] == 0.0 and abs(mu["range"]["min"]["at"] - level[0]) < 0.01
+    assert mu["peaks"]["acceleration"]["infinite"] and mu["peaks"]["jerk"]["infinite"]
+    code, out, _ = run(capsys, "check", str(path))
+    assert f"turns back at {level[0]:.2f}°, {level[1]:.2f}°" in out and "falls to 0°" in out
+
+
 # --- servo carriage: the motor profile from the inverted closed form -------------------------
 
 E_SV, A_SV, B_SV, HOME = 15.0, 60.0, 200.0, 160.0  # presets/servo-carriage.toml (mm)

@@ -154,7 +154,7 @@ def output_block(spec, spec_output, study) -> Group:
                                    f" (now {fmt(study.speed)})"))
     if study.folds:
         where = ", ".join(f"{fmt(_at(at), 5)}°" for at in study.folds)
-        lines.append(_note(f"passes 90° at {where}: it turns back there, its rate flips sign", "dim"))
+        lines.append(_note(f"turns back at {where} (lines at 90° or parallel): its rate flips sign", "dim"))
     for j in study.jumps:
         if j.velocity_jump:
             what = f"velocity jumps by {fmt(j.velocity_jump)} {unit}/s: infinite acceleration and jerk"

@@ -6,8 +6,8 @@ segment boundaries of the axes the drivers follow); each stretch is searched
 for peaks on its own, so that no search runs across a join, and the jumps at
 the joins are read from the two sides.  A velocity jump means infinite
 acceleration and jerk, an acceleration jump infinite jerk, as for an axis.
-A transmission angle turns back where the lines pass 90°: its rate flips
-sign there, a velocity jump of its own.
+A transmission angle turns back where the lines pass 90° or fall parallel:
+its rate flips sign there, a velocity jump of its own.
 """
 
 from __future__ import annotations
@@ -60,7 +60,7 @@ class OutputStudy:
     checks: tuple[LimitCheck, ...]
     max_speed: float | None
     jumps: tuple[OutputJump, ...]
-    folds: tuple[float, ...] = ()  # master deg where a transmission angle passes 90° (its rate flips sign)
+    folds: tuple[float, ...] = ()  # master deg where a transmission angle turns back at 90° or 0° (rate flips sign)
 
     @property
     def ok(self) -> bool:
@@ -92,22 +92,26 @@ def _ends(solution: LinkageSolution, output) -> list[tuple[float, np.ndarray, np
     return out
 
 
-def _folds(view, output) -> list[tuple[float, float]]:
-    """(master deg, size of the jump of μ' per rad) where a transmission angle μ passes 90°.
+def _folds(curve, output) -> list[tuple[float, float, float]]:
+    """(master deg, jump of μ' per rad, μ there in rad) where a transmission angle μ turns back.
 
-    μ folds the angle ψ ∈ [0°, 180°] between the two lines at 90°, so its rate
-    flips sign there: a velocity jump of 2|ψ'|.
+    μ folds the angle ψ ∈ [0°, 180°] between the two lines at 90° and at 0°
+    (lines parallel), so its rate flips sign there: a velocity jump of 2|ψ'|.
+    A fold is a sign flip of μ' between samples with |μ'| on both sides too
+    large for a smooth turn (where |μ'| ≤ |μ''|·h/2 on one side).
     """
-    if not isinstance(output, TransmissionAngle):
+    if not isinstance(output, TransmissionAngle) or curve.theta.size < 2:
         return []
-    psi = view.output(replace(output, acute=False))
-    side = np.sign(psi.value - RIGHT_ANGLE)
-    where = np.flatnonzero(side[:-1] * side[1:] < 0.0)
+    mu, d1, d2, t = curve.value, curve.d1, curve.d2, curve.theta
+    h = np.diff(t)
+    flip = np.sign(d1[:-1]) * np.sign(d1[1:]) < 0.0
+    steep = np.minimum(np.abs(d1[:-1]), np.abs(d1[1:])) > h * np.maximum(np.abs(d2[:-1]), np.abs(d2[1:]))
     out = []
-    for i in where:
-        share = (RIGHT_ANGLE - psi.value[i]) / (psi.value[i + 1] - psi.value[i])
-        at = psi.theta[i] + share * (psi.theta[i + 1] - psi.theta[i])
-        out.append((math.degrees(at), 2.0 * abs(psi.d1[i] + share * (psi.d1[i + 1] - psi.d1[i]))))
+    for i in np.flatnonzero(flip & steep):
+        corner = RIGHT_ANGLE if mu[i] > 0.5 * RIGHT_ANGLE else 0.0
+        left, right = abs(mu[i] - corner), abs(mu[i + 1] - corner)
+        share = left / (left + right) if left + right > 0.0 else 0.5
+        out.append((math.degrees(t[i] + share * h[i]), abs(d1[i]) + abs(d1[i + 1]), corner))
     return out
 
 
@@ -180,7 +184,7 @@ def study_output(solution: LinkageSolution, name: str, limits: Limits) -> Output
         for q in QUANTITIES:
             peaks[q].append(found[q])
         largest = np.maximum(largest, [np.max(np.abs(d)) for d in (curve.d1, curve.d2, curve.d3)])
-        folds += _folds(view, output)
+        folds += _folds(curve, output)
     jumps = []
     ends = _ends(solution, output)
     for k, (at, first, _) in enumerate(ends):
@@ -193,10 +197,15 @@ def study_output(solution: LinkageSolution, name: str, limits: Limits) -> Output
         if solution.pieces[k].stretch.rest:
             highs.append((float(first[0]), at))
             lows.append((-float(first[0]), at))
+    for at, _, corner in folds:  # a fold is an extreme of μ, exactly 0° or 90°
+        (highs if corner else lows).append((corner if corner else -0.0, at))
+    if isinstance(output, TransmissionAngle):  # a parabola through a fold may overshoot it
+        highs = [(min(v, RIGHT_ANGLE), at) for v, at in highs]
+        lows = [(min(v, 0.0), at) for v, at in lows]
     high, low = _first_max(sorted(highs, key=_angle)), _first_max(sorted(lows, key=_angle))
     out = {q: Peak(v * k_unit, at) for q, (v, at) in ((q, _first_max(sorted(peaks[q], key=_angle))) for q in QUANTITIES)}
     velocity_jumps = [(abs(j.velocity_jump), j.at) for j in jumps if j.velocity_jump]
-    velocity_jumps += [(d * omega * k_unit, at) for at, d in folds]
+    velocity_jumps += [(d * omega * k_unit, at) for at, d, _ in folds]
     acceleration_jumps = [(abs(j.acceleration_jump), j.at) for j in jumps if j.acceleration_jump]
     if velocity_jumps:
         at = _first_max(velocity_jumps)[1]
@@ -214,7 +223,7 @@ def study_output(solution: LinkageSolution, name: str, limits: Limits) -> Output
         elif peak.value > 0.0:
             bounds.append(speed * (limit / peak.value) ** (1.0 / k))
     return OutputStudy(name, unit, speed, Peak(-low[0] * k_unit, low[1]), Peak(high[0] * k_unit, high[1]), out,
-                       tuple(checks), min(bounds) if bounds else None, tuple(jumps), tuple(at for at, _ in folds))
+                       tuple(checks), min(bounds) if bounds else None, tuple(jumps), tuple(at for at, _, _ in folds))
 
 
 # --- the linkage ---------------------------------------------------------------------------
