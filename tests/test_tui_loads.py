@@ -99,7 +99,7 @@ async def test_stamp_follower_figures_match_the_solver():
         caution = str(app.query_one("#loads-caution", Static).content)
         assert "rigid-body estimates" in caution
         contact = app.query_one("#loads-contact", AnglePlot)
-        assert "margin 50 N (red)" in contact.title and contact.points_drawn > 0
+        assert "margin 50 N (dashed)" in contact.title and contact.points_drawn > 0
 
 
 def cycloidal_return(theta_deg: float, start: float = 230.0, span: float = 90.0, lift: float = 20.0):

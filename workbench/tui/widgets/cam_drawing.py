@@ -31,7 +31,7 @@ LAYERS = {
     "zero": ("bright_black", 0),
     "pitch": ("blue", 2.0),
     "profile": ("bold bright_white", 0),
-    "follower": ("bold yellow", 0),
+    "follower": ("bold bright_yellow", 0),
 }
 MARK_STYLE = {TROUBLE_MARK: "bold red", CORNER_MARK: "bold red", CENTRE_MARK: "bright_black"}
 

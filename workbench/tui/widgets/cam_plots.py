@@ -29,9 +29,16 @@ from .cam_verdicts import angle, num
 from .motion_plots import BRAILLE_DOTS_X, ROWS_PER_TICK, MotionPlot
 
 CURSOR_STYLE = "bold bright_white"
-LIMIT_STYLE = "red"  # limit lines; titles say "(red)" in words too
-WARN_LINE_STYLE = "yellow"  # a threshold that is not a limit (undercut, zero contact)
-ZERO_STYLE = "bright_black"
+LIMIT_STYLE = "red"  # limit lines
+WARN_LINE_STYLE = "bright_yellow"  # a threshold that is not a limit (undercut, zero contact)
+# kind of horizontal line: (style, pattern as (period, cells drawn) along the line, word for titles).
+# Lines differ by pattern as well as colour, so titles name the pattern: it reads in 16 colours
+# (where a theme may render "red" as magenta) and without colour.
+LINE_KINDS = {
+    "limit": (LIMIT_STYLE, (3, 2), "dashed"),
+    "threshold": (WARN_LINE_STYLE, (2, 1), "dotted"),
+    "zero": ("bright_black", (4, 1), ""),
+}
 TITLE_GAP = 1  # columns kept free after a title, so two plots' titles side by side stay apart
 PAD = 0.06  # share of the y range left free above and below the data
 RADIUS_CAP = 2.0  # the radius plot shows ± this many cam sizes; larger radii are near-flat anyway
@@ -48,10 +55,19 @@ class Curve:
 
 @dataclass(frozen=True)
 class RefLine:
-    """A horizontal line at `value`."""
+    """A horizontal line at `value`; `kind` one of `LINE_KINDS` ("limit", "threshold", "zero")."""
 
     value: float
-    style: str
+    kind: str = "limit"
+
+    @property
+    def style(self) -> str:
+        return LINE_KINDS[self.kind][0]
+
+
+def pattern_word(kind: str) -> str:
+    """How a line of `kind` looks, for titles: "dashed", "dotted"."""
+    return LINE_KINDS[kind][2]
 
 
 @dataclass(frozen=True)
@@ -106,7 +122,8 @@ class AnglePlot(MotionPlot):
         self.spec: PlotSpec | None = None
         self.cursor: float | None = None
         """Cursor cam angle in deg (None: no cursor)."""
-        self._line_sets: set[int] = set()
+        self._line_patterns: dict[int, tuple[int, int]] = {}
+        """Dash pattern (period, cells drawn) of each reference line's dataset, by id."""
 
     def show_spec(self, spec: PlotSpec | None, cursor: float | None = None) -> None:
         self.spec, self.cursor = spec, cursor
@@ -134,12 +151,12 @@ class AnglePlot(MotionPlot):
         rows = max(1, self.size.height - self.margin_top - self.margin_bottom)
         self._y_tick_format.count = max(2, rows // ROWS_PER_TICK + 1)
         columns = max(8, self.size.width - self.margin_left - 2)
-        self._line_sets = set()
-        for line in sorted(spec.lines, key=lambda ref: ref.style == LIMIT_STYLE):  # limits last: on top
+        self._line_patterns = {}
+        for line in sorted(spec.lines, key=lambda ref: ref.kind == "limit"):  # limits last: on top
             if lo <= line.value <= hi:
                 self.plot([0.0, 360.0], [line.value, line.value], line_style=line.style,
                           hires_mode=HiResMode.BRAILLE)
-                self._line_sets.add(id(self._datasets[-1]))
+                self._line_patterns[id(self._datasets[-1])] = LINE_KINDS[line.kind][1]
         drawn = 0
         for curve in spec.curves:
             for piece in runs(curve.values, lo, hi):
@@ -154,9 +171,10 @@ class AnglePlot(MotionPlot):
         self.set_ylabel(escape(self.title))
 
     def _render_line_plot(self, dataset) -> None:
-        """Braille lines; a reference line's dots join those of another reference line in the same
-        cell (two limits sharing a row of cells both stay visible; the later gives the colour), while
-        a curve takes its cells over (so no line appears in the curve's colour)."""
+        """Braille lines; a reference line is drawn in its dash pattern and its dots join those of
+        another reference line in the same cell (two limits sharing a row of cells both stay
+        visible; the later gives the colour), while a curve takes its cells over (so no line
+        appears in the curve's colour)."""
         if dataset.hires_mode is not HiResMode.BRAILLE or dataset.x.size == 0:
             super()._render_line_plot(dataset)
             return
@@ -167,10 +185,12 @@ class AnglePlot(MotionPlot):
         size = canvas._canvas_size
         columns, rows, chars = braille_cells(x, y, size.width, size.height)
         buffer, styles = canvas._buffer, canvas._styles
-        merge = id(dataset) in self._line_sets
+        pattern = self._line_patterns.get(id(dataset))
         for c, r, ch in zip(columns.tolist(), rows.tolist(), chars):
+            if pattern is not None and c % pattern[0] >= pattern[1]:
+                continue
             old = buffer[r][c]
-            if merge and len(old) == 1 and BRAILLE_BASE <= ord(old) < BRAILLE_BASE + 0x100:
+            if pattern is not None and len(old) == 1 and BRAILLE_BASE <= ord(old) < BRAILLE_BASE + 0x100:
                 ch = chr(ord(old) | ord(ch))
             buffer[r][c] = ch
             styles[r][c] = dataset.line_style
@@ -209,13 +229,13 @@ def pressure_angle_plot(entry: CamEntry) -> PlotSpec:
     theta, phi = np.append(theta, 360.0), np.append(phi, phi[:1])
     largest = math.degrees(a.max_pressure_angle.value)
     parts = ["pressure angle [°]"]
-    lines = [RefLine(0.0, ZERO_STYLE)]
+    lines = [RefLine(0.0, "zero")]
     top = max(largest, 1.0)
     limit = study.limits.pressure_angle
     if limit is not None:
         deg = math.degrees(limit)
-        parts.append(f"limit ±{fmt(deg)}°{_source_mark(entry, 'pressure_angle')} (red)")
-        lines += [RefLine(deg, LIMIT_STYLE), RefLine(-deg, LIMIT_STYLE)]
+        parts.append(f"limit ±{fmt(deg)}°{_source_mark(entry, 'pressure_angle')} ({pattern_word('limit')})")
+        lines += [RefLine(deg), RefLine(-deg)]
         top = max(top, deg)
     parts.append(f"largest {num(largest)}° at {angle(a.max_pressure_angle.at)}")
     top *= 1 + PAD
@@ -235,20 +255,20 @@ def radius_plot(entry: CamEntry) -> PlotSpec:
     radii = a.pitch_radii if roller else a.profile_radii
     least = radii.convex.value * MM
     parts = ["pitch ρ [mm]" if roller else "profile ρ [mm]"]
-    lines = [RefLine(0.0, ZERO_STYLE)]
+    lines = [RefLine(0.0, "zero")]
     marks = []
     limits = study.limits
     if roller and limits.curvature_ratio is not None and f.roller_radius > 0:
         value = limits.curvature_ratio * f.roller_radius * MM
-        marks.append((value, LIMIT_STYLE, f"limit ≥ {fmt(value)} mm{_source_mark(entry, 'curvature_ratio')} (red)"))
+        marks.append((value, "limit", f"limit ≥ {fmt(value)} mm{_source_mark(entry, 'curvature_ratio')}"))
     if limits.min_radius is not None:  # on the profile: for a roller, pitch radius = profile + r
         value = limits.min_radius * MM + (f.roller_radius * MM if roller else 0.0)
-        marks.append((value, LIMIT_STYLE, f"limit ≥ {fmt(value)} mm (red)"))
+        marks.append((value, "limit", f"limit ≥ {fmt(value)} mm"))
     if roller and f.roller_radius > 0:
-        marks.append((f.roller_radius * MM, WARN_LINE_STYLE, f"undercut ≤ {fmt(f.roller_radius * MM)} mm (yellow)"))
-    for value, style, words in marks:
-        lines.append(RefLine(value, style))
-        parts.append(words)
+        marks.append((f.roller_radius * MM, "threshold", f"undercut ≤ {fmt(f.roller_radius * MM)} mm"))
+    for value, kind, words in marks:
+        lines.append(RefLine(value, kind))
+        parts.append(f"{words} ({pattern_word(kind)})")
     if not roller:
         parts.append("cusp ≤ 0")
     parts.append(f"least convex {num(least)} mm at {angle(radii.convex.at)}")

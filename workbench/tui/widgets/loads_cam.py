@@ -18,7 +18,7 @@ from solver.cam import FOLLOWERS, CamGeometryError
 from ...camfile import cam_specs, study_cam
 from ...camreport import LOADS_CAUTION, CamLoads, cam_loads
 from ...projectfile import Project
-from .cam_plots import LIMIT_STYLE, WARN_LINE_STYLE, ZERO_STYLE, Curve, PlotSpec, RefLine
+from .cam_plots import Curve, PlotSpec, RefLine, pattern_word
 from .cam_verdicts import num
 from .loads_data import Figure, LoadsItem, register_loads_source
 
@@ -44,11 +44,12 @@ def contact_curve(loads: CamLoads) -> np.ndarray:
 def contact_plot(loads: CamLoads, at_radius: str) -> PlotSpec:
     theta, force = _closed(loads.forces.theta, contact_curve(loads))
     parts = [f"contact force{at_radius} [N]"]
-    lines = [RefLine(0.0, WARN_LINE_STYLE)]
+    lines = [RefLine(0.0, "threshold")]
     if loads.margin > 0:
-        parts.append(f"margin {num(loads.margin)} N (red)")
-        lines.append(RefLine(loads.margin, LIMIT_STYLE))
-    parts += ["jumps below 0 (yellow)", f"least {num(loads.min_contact)} N at {_deg(loads.min_contact_at)}"]
+        parts.append(f"margin {num(loads.margin)} N ({pattern_word('limit')})")
+        lines.append(RefLine(loads.margin, "limit"))
+    parts += [f"jumps below 0 N ({pattern_word('threshold')})",
+              f"least {num(loads.min_contact)} N at {_deg(loads.min_contact_at)}"]
     return PlotSpec(tuple(parts), (Curve(theta, force, CONTACT_STYLE),), tuple(lines))
 
 
@@ -56,7 +57,7 @@ def torque_plot(loads: CamLoads) -> PlotSpec:
     theta, torque = _closed(loads.forces.theta, loads.forces.torque)
     parts = ("camshaft torque [N·m]", f"peak {num(loads.peak_torque)} N·m at {_deg(loads.peak_torque_at)}",
              f"RMS {num(loads.rms_torque)} N·m")
-    return PlotSpec(parts, (Curve(theta, torque, TORQUE_STYLE),), (RefLine(0.0, ZERO_STYLE),))
+    return PlotSpec(parts, (Curve(theta, torque, TORQUE_STYLE),), (RefLine(0.0, "zero"),))
 
 
 def figures(loads: CamLoads, at_radius: str) -> tuple[Figure, ...]:
