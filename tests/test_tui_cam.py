@@ -179,10 +179,8 @@ async def test_worst_spots_in_turn(press_file):
     app = Workbench(load_project(press_file))
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        await pilot.press("4")
-        await settle(pilot)
         a = analyse(stamp_cam(app.project))
-        await pilot.press("w")
+        await pilot.press("4", "w")  # asked before the cams are studied: done when they are
         await settle(pilot)
         assert view(app).angle == pytest.approx(float(shown_deg(a.max_pressure_angle.at).rstrip("°")))
         assert "largest pressure angle" in app.status_text

@@ -147,6 +147,8 @@ class CamView(WorkbenchView):
         self.angle = 0.0
         """Cam angle on view, deg."""
         self._spot = 0
+        self._waiting: list = []
+        """Actions asked for while the worker studies the cams; they run when it is done."""
 
     def compose(self) -> ComposeResult:
         yield CamBar(id="cam-bar")
@@ -189,6 +191,16 @@ class CamView(WorkbenchView):
             return  # a newer state is on its way
         self.entries, self.entries_for = message.entries, message.project
         self._refresh_all()
+        waiting, self._waiting = self._waiting, []
+        for action in waiting:
+            action()
+
+    def _when_studied(self, action) -> bool:
+        """True to go on now; False when the cams are still being studied (`action` runs then)."""
+        if self.fresh or self.project is None or not cam_specs(self.project):
+            return True
+        self._waiting.append(action)
+        return False
 
     @property
     def entry(self) -> CamEntry | None:
@@ -346,6 +358,8 @@ class CamView(WorkbenchView):
         return [(what, float(angle(at).rstrip("°"))) for what, at in out]
 
     def action_worst(self) -> None:
+        if not self._when_studied(self.action_worst):
+            return
         spots = self.spots()
         if not spots:
             return
@@ -355,6 +369,8 @@ class CamView(WorkbenchView):
         self.post_message(Status(f"cam {self.cam_name}: {what} at {degrees(at)} (w: next spot)"))
 
     def action_export(self) -> None:
+        if not self._when_studied(self.action_export):
+            return
         entry = self.entry
         if self.project is None or entry is None:
             self.post_message(Status("no cam to export: this project has no [[cam]] table", error=True))
