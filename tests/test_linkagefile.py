@@ -236,7 +236,7 @@ BAD = [
     (lambda t: t.replace("B = [150.0, 0.0]", "B = [150.0, nan]"),
      ['body "rod"', 'key "points"', "finite"]),
     (lambda t: t.replace("G = [0.0, 10.0]", "G = 10.0"),
-     ['linkage "L", ground', "point 'G'"]),
+     ['linkage "L", ground', 'key "G"', "point 'G' must be [x, y] in mm"]),
     (lambda t: t.replace('axis = [1.0, 0.0]\n\n[[linkage.driver]]\nname = "motor"\njoint = "O"\nturns = 1.0',
                          'axis = [1.0, 0.0]\n\n[[linkage.driver]]\nname = "motor"\njoint = "O"\naxis = "nope"'),
      ['driver "motor"', 'key "axis"', "no axis 'nope' in this file (axes: swing, push)"]),

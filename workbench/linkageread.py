@@ -77,15 +77,15 @@ def _name(t: Table, what: str) -> str:
     return name
 
 
-def _point_table(raw, error, where: str) -> tuple[tuple[str, tuple[float, float]], ...]:
-    """A table of point name → [x, y] (mm)."""
+def _point_table(raw, error, key: str | None) -> tuple[tuple[str, tuple[float, float]], ...]:
+    """A table of point name → [x, y] (mm); `error(key, problem)` names `key`, or the point when None."""
     if not isinstance(raw, dict):
-        raise error(f"must be a table of points, e.g. {{ A = [40.0, 0.0] }}, got {raw!r}")
+        raise error(key, f"must be a table of points, e.g. {{ A = [40.0, 0.0] }}, got {raw!r}")
     points = []
     for name, xy in raw.items():
         if not name.strip() or "." in name:
-            raise error(f"point name {name!r} must be non-empty and without a dot")
-        value = _number_list(xy, 2, lambda p, n=name: error(f"point {n!r} {p}"), "[x, y] in mm")
+            raise error(key or name, f"point name {name!r} must be non-empty and without a dot")
+        value = _number_list(xy, 2, lambda p, n=name: error(key or n, f"point {n!r} {p}"), "[x, y] in mm")
         points.append((name, value))
     return tuple(points)
 
@@ -118,7 +118,7 @@ class _LinkageReader:
         ground = ()
         if t.has("ground"):
             where = f"{self.label}, ground"
-            ground = _point_table(t.raw("ground"), lambda p: ProjectError(self.file, where, None, p), where)
+            ground = _point_table(t.raw("ground"), lambda k, p: ProjectError(self.file, where, k, p), None)
         self.points[GROUND] = dict(ground)
         raw_bodies = t.tables("body", required=True)
         if not raw_bodies:
@@ -153,7 +153,7 @@ class _LinkageReader:
                          required=True)
         if not b.has("points"):
             raise b.error("points", "is missing: name the body's points, e.g. { A = [0.0, 0.0], B = [80.0, 0.0] }")
-        points = _point_table(b.raw("points"), lambda p: b.error("points", p), b.where)
+        points = _point_table(b.raw("points"), b.error, "points")
         if not points:
             raise b.error("points", "must name at least one point")
         b.done()
