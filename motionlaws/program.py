@@ -30,6 +30,7 @@ from .polyfit import hermite_coefficients
 FULL_CYCLE = 360.0  # master degrees in one machine cycle
 SPAN_SUM_TOLERANCE = 1e-9  # degrees: spans must sum to 360 within this
 POSITION_TOLERANCE = 1e-9  # relative to the axis's position scale
+BOUNDARY_SNAP = 1e-9  # degrees: angles this close below a segment start are on it
 
 
 class ProgramError(ValueError):
@@ -346,7 +347,9 @@ class Program:
         else:
             cycles = np.floor(flat / FULL_CYCLE)
             t = flat - cycles * FULL_CYCLE
-        seg = np.searchsorted(self.bounds, t, side="right") - 1
+        # An angle a hair below a boundary (30° that came back from radians as
+        # 29.999999999999996°) belongs to the segment that starts there.
+        seg = np.searchsorted(self.bounds, t + BOUNDARY_SNAP, side="right") - 1
         np.clip(seg, 0, len(self.shapes) - 1, out=seg)
         if flat.size > 1 and np.all(seg[1:] >= seg[:-1]):  # sorted: contiguous slices
             cuts = np.searchsorted(seg, np.arange(len(self.shapes) + 1))

@@ -631,6 +631,6 @@ def test_table_names_outputs_as_linkage_dot_output(capsys):
     code, _, err = run(capsys, "table", str(path), "--axis", "pusher.nope")
     assert code == 2 and "no output 'nope' (outputs: pusher.stroke, pusher.face-x)" in err
     code, _, err = run(capsys, "table", str(path), "--axis", "nobody.stroke")
-    assert code == 2 and "no axis 'nobody.stroke'" in err
+    assert code == 2 and "no axis or output 'nobody.stroke'" in err and "pusher.stroke" in err
     head, rows = table_rows(capsys, path, "pusher.stroke", 90)
     assert rows[:, 0].tolist() == [0.0, 90.0, 180.0, 270.0]

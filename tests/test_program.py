@@ -212,3 +212,14 @@ def test_table_rows_exclude_360():
     p = compile_axis(lid_lift())
     theta, *_ = p.table(120.0, 0.5)
     assert theta[0] == 0.0 and theta[-1] == 359.5 and len(theta) == 720
+
+
+def test_angle_a_hair_below_a_boundary_belongs_to_the_next_segment():
+    # 30° back from radians is 29.999999999999996°: it must read the segment
+    # that starts at 30°, not the end of the one before (derivatives jump there).
+    axis = Axis("b", (Segment("cycloidal", 30, 5.0), Segment("poly345", 150, 20.0), Segment("poly345", 180, 0.0)))
+    p = compile_axis(axis)
+    hair = float(np.degrees(np.radians(30.0)))
+    assert hair < 30.0
+    for got, want in zip(p.master(np.array([hair])), p.master(np.array([30.0]))):
+        assert got[0] == pytest.approx(want[0], rel=1e-9, abs=1e-9)

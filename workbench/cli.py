@@ -11,7 +11,6 @@ Commands register themselves in `COMMANDS` (name → (add_arguments, run)).
 from __future__ import annotations
 
 import argparse
-import io
 import json
 import sys
 from pathlib import Path
@@ -22,7 +21,8 @@ from rich.console import Console
 from .axisreport import axis_json, axis_reports, axis_table
 from .projectfile import ProjectError, load_project, write_atomic
 from .presets import DEMO_PRESET, preset_names, preset_path
-from .sections import CHECK_SECTIONS, TABLE_SOURCES
+from .csvtable import motion_csv_text
+from .sections import CHECK_SECTIONS, TABLE_NAMES, TABLE_SOURCES
 
 EXIT_OK, EXIT_OVER, EXIT_INVALID = 0, 1, 2
 
@@ -78,7 +78,7 @@ def run_check(args, out: Console, err: Console) -> int:
                 out.print()
                 out.print(r)
         out.print()
-        out.print("ALL WITHIN LIMITS" if ok else "SOME LIMIT EXCEEDED", style="bold green" if ok else "bold red")
+        out.print("ALL CHECKS PASS" if ok else "SOME CHECK FAILED", style="bold green" if ok else "bold red")
         out.print(f"[dim]{CAUTION}[/]")
     return EXIT_OK if ok else EXIT_OVER
 
@@ -107,14 +107,7 @@ def motion_csv(project, axis_name: str, step: float) -> str:
     """CSV cam table: master, position, velocity, acceleration, jerk at full precision."""
     axis = project.axis(axis_name)
     theta, s, v, a, j = project.programs[axis_name].table(project.speed, step)
-    u = axis.unit
-    buf = io.StringIO()
-    buf.write(
-        f"master [deg],position [{u}],velocity [{u}/s],acceleration [{u}/s^2],jerk [{u}/s^3]\n"
-    )
-    for row in zip(theta.tolist(), s.tolist(), v.tolist(), a.tolist(), j.tolist()):
-        buf.write(",".join(repr(x + 0.0) for x in row) + "\n")
-    return buf.getvalue()
+    return motion_csv_text(theta, s, v, a, j, axis.unit)
 
 
 @command("table", "CSV motion table of one axis (or output)", _table_args)
@@ -130,8 +123,8 @@ def run_table(args, out: Console, err: Console) -> int:
             if text is not None:
                 break
         if text is None:
-            known = ", ".join(names) or "none"
-            raise ProjectError(args.file, None, "--axis", f"no axis {args.axis!r} (axes: {known})")
+            known = ", ".join(names + [n for lister in TABLE_NAMES for n in lister(project)]) or "none"
+            raise ProjectError(args.file, None, "--axis", f"no axis or output {args.axis!r} (known: {known})")
     if args.out:
         write_atomic(args.out, text)
     else:

@@ -8,7 +8,6 @@ exit code 1.  A table source answers `--axis LINKAGE.OUTPUT`.
 
 from __future__ import annotations
 
-import io
 import math
 
 import numpy as np
@@ -22,7 +21,8 @@ from solver.kinematics import DEAD_POINT, NOT_ASSEMBLED, NOT_DRIVEN, SOLVED
 
 from . import axisreport  # a module reference: axisreport may still be loading (it imports projectfile)
 from .linkagefile import describe, find_linkage, linkage_specs, target_unit
-from .sections import CHECK_SECTIONS, TABLE_SOURCES
+from .csvtable import motion_csv_text
+from .sections import CHECK_SECTIONS, TABLE_NAMES, TABLE_SOURCES
 from .tomlcheck import ProjectError
 
 FULL_TURN = 360.0  # master degrees per cycle
@@ -271,13 +271,14 @@ def output_csv(project, name: str, step: float) -> str | None:
         raise ProjectError(project.path, exc.where, exc.key, exc.problem) from None
     if s is None:
         raise ProjectError(project.path, where, None, f"{solution.result.message}: no table can be written")
-    unit = solution.built.units[output]
-    buf = io.StringIO()
-    buf.write(f"master [deg],position [{unit}],velocity [{unit}/s],acceleration [{unit}/s^2],jerk [{unit}/s^3]\n")
-    for row in zip(theta.tolist(), s.tolist(), v.tolist(), a.tolist(), j.tolist()):
-        buf.write(",".join(repr(x + 0.0) for x in row) + "\n")
-    return buf.getvalue()
+    return motion_csv_text(theta, s, v, a, j, solution.built.units[output])
+
+
+def output_names(project) -> list[str]:
+    """Every "LINKAGE.OUTPUT" name `output_csv` knows."""
+    return [f"{spec.name}.{o.name}" for spec in project.parts.get("linkage") or [] for o in spec.outputs]
 
 
 CHECK_SECTIONS.append(linkage_section)
 TABLE_SOURCES.append(output_csv)
+TABLE_NAMES.append(output_names)

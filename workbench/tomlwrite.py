@@ -14,7 +14,7 @@ import re
 import numpy as np
 import tomli_w
 
-INLINE_KEYS = {"start", "end"}
+INLINE_KEYS = {"start", "end", "points"}
 _BARE = re.compile(r"^[A-Za-z0-9_-]+$")
 
 
@@ -37,8 +37,10 @@ def _value(v) -> str:
     """One TOML value (scalar, array of scalars or inline table)."""
     if isinstance(v, float):
         return _float(v)
-    if isinstance(v, list) and all(isinstance(x, float) for x in v):
-        return "[" + ", ".join(_float(x) for x in v) + "]"
+    if isinstance(v, list) and not any(isinstance(x, (dict, list)) for x in v):
+        return "[" + ", ".join(_value(x) for x in v) + "]"  # short lists stay on one line
+    if isinstance(v, dict):
+        return "{ " + ", ".join(f"{_key(a)} = {_value(b)}" for a, b in v.items()) + " }"
     return tomli_w.dumps({"k": v}).split(" = ", 1)[1].strip()
 
 
@@ -53,8 +55,7 @@ def _inline(k, v) -> bool:
 def _table(data: dict, path: list[str], out: list[str]) -> None:
     for k, v in data.items():
         if _inline(k, v):
-            body = ", ".join(f"{_key(a)} = {_value(b)}" for a, b in v.items())
-            out.append(f"{_key(k)} = {{ {body} }}")
+            out.append(f"{_key(k)} = {_value(v)}")
         elif not isinstance(v, dict) and not _is_table_array(v):
             out.append(f"{_key(k)} = {_value(v)}")
     for k, v in data.items():
