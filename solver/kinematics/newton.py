@@ -61,6 +61,8 @@ def newton(
             )
         if np.isfinite(step).all():
             q += step
+            if iteration == max_iterations or converged.all():
+                system.advance_poses(step)  # the derivatives are evaluated at q next
         else:  # singular instants: leave them where they are (they stay unconverged)
             finite = np.all(np.isfinite(step), axis=0)
             q[:, finite] += step[:, finite]

@@ -30,6 +30,9 @@ from .motion import evaluate_motion
 from .workspace import borrow, give_back
 
 SLOT_COLUMNS = 3  # x, y, φ per body
+TRIG_REUSE_FROM = 64  # instants: from this many on, moving the poses by a Newton step beats cos and sin afresh
+GROUND_POSE = np.array([[0.0], [0.0], [0.0], [1.0], [0.0]])  # x, y, φ, cos φ, sin φ of the ground
+ADVANCE_LIMIT = 1e-4  # rad: a turn this small is applied to cos, sin by series to below round-off (error δ⁴/24)
 
 
 @dataclass
@@ -93,6 +96,7 @@ class System:
         self.length = mechanism.length_scale()
         self._workspace = None  # scratch memory, borrowed on first use (workspace.py)
         self._give_back = None
+        self._poses_shape = None  # shape of the poses buffer while it holds consistent poses (x, y, φ, cos, sin)
         self._kept = None  # poses and rates of the last gamma call, for eta(after_gamma=True)
 
         entries = [(j.name, j.resolve(mechanism)) for j in mechanism.joints.values()]
@@ -172,16 +176,54 @@ class System:
             self._give_back()
             self._workspace = None
             self._kept = None
+            self._poses_shape = None
 
-    def _poses(self, q: np.ndarray) -> np.ndarray:
-        """(5, B+1, N): x, y, φ, cos φ, sin φ of every body; the ground (last) at rest at the origin."""
-        N = q.shape[1]
-        out = self._buffer("poses", (5, self.B + 1, N))
-        out[:3, : self.B] = q.reshape(self.B, 3, N).transpose(1, 0, 2)
-        out[:3, self.B] = 0.0
-        np.cos(out[2], out=out[3])
-        np.sin(out[2], out=out[4])
+    def _poses(self, q: np.ndarray, reuse: bool = False) -> np.ndarray:
+        """(5, B+1, N): x, y, φ, cos φ, sin φ of every body; the ground (last) at rest at the origin.
+
+        With `reuse`, poses already in the buffer for exactly these
+        coordinates (left there by `advance_poses`) are taken as they are.
+        """
+        B, N = self.B, q.shape[1]
+        shape = (5, B + 1, N)
+        out = self._buffer("poses", shape)
+        coords = q.reshape(B, 3, N).transpose(1, 0, 2)
+        if reuse and self._poses_shape == shape and np.array_equal(out[:3, :B], coords):
+            return out
+        out[:3, :B] = coords
+        out[:, B] = GROUND_POSE
+        np.cos(out[2, :B], out=out[3, :B])
+        np.sin(out[2, :B], out=out[4, :B])
+        self._poses_shape = shape
         return out
+
+    def advance_poses(self, step: np.ndarray) -> None:
+        """Move the poses of the last evaluation by a small Newton step (n, N) that was added to its q.
+
+        The next `gamma` or `eta` at the moved q then skips cos and sin: they
+        are turned by the step's angle with the series cos δ ≈ 1 − δ²/2,
+        sin δ ≈ δ − δ³/6 (exact to round-off for |δ| ≤ ADVANCE_LIMIT).  Does
+        nothing for few instants, steps that are not small, or when the
+        buffer holds other poses.
+        """
+        B, N = self.B, step.shape[1]
+        shape = (5, B + 1, N)
+        if N < TRIG_REUSE_FROM or self._poses_shape != shape:
+            return
+        move = step.reshape(B, 3, N).transpose(1, 0, 2)
+        turn = move[2]
+        if not np.max(np.abs(turn)) <= ADVANCE_LIMIT:  # also refuses NaN
+            self._poses_shape = None
+            return
+        out = self._buffer("poses", shape)
+        out[:3, :B] += move
+        t2 = turn * turn
+        cos_t = 1.0 - 0.5 * t2
+        sin_t = turn * (1.0 - t2 / 6.0)
+        c = out[3, :B].copy()
+        s = out[4, :B]
+        out[3, :B] = c * cos_t - s * sin_t
+        out[4, :B] = s * cos_t + c * sin_t
 
     def _rates(self, dq: np.ndarray, key: str = "rates") -> np.ndarray:
         """(3, B+1, N): a derivative of x, y, φ of every body; zero for the ground."""
@@ -268,7 +310,7 @@ class System:
 
     def gamma(self, q, dq, drive) -> np.ndarray:
         """γ (m, N) at q, q' (n, N); Φq q'' = γ."""
-        arrays, rates = self._poses(q), self._rates(dq)
+        arrays, rates = self._poses(q, reuse=True), self._rates(dq)
         out = np.empty((self.m, q.shape[1]))
         kept = []
         for g in self.groups:
@@ -288,7 +330,7 @@ class System:
         """
         kept = self._kept if after_gamma else None
         if kept is None:
-            arrays, rates = self._poses(q), self._rates(dq)
+            arrays, rates = self._poses(q, reuse=True), self._rates(dq)
         accels = self._rates(ddq, "accels")
         out = np.empty((self.m, q.shape[1]))
         for i, g in enumerate(self.groups):
