@@ -228,17 +228,11 @@ class SparseFactor:
         largest = np.ones(N)  # constant pivots are 1 in magnitude
         for k in range(r):
             if k + 1 < r:
-                p = k + np.argmax(np.abs(S[k:, k, :]), axis=0)
-                moved = np.flatnonzero(p != k)
-                if moved.size:
-                    pk = p[moved]
-                    row_k = S[k][:, moved].copy()
-                    S[k][:, moved] = S[pk, :, moved].T
-                    S[pk, :, moved] = row_k.T
-                    perm_k = perm[k, moved].copy()
-                    perm[k, moved] = perm[pk, moved]
-                    perm[pk, moved] = perm_k
-                    det_sign[moved] *= -1.0
+                rel = np.argmax(np.abs(S[k:, k, :]), axis=0)  # pivot row per instant, counted from row k
+                if rel.any():
+                    _swap_rows(S, k, rel)
+                    _swap_rows(perm, k, rel)
+                    np.negative(det_sign, out=det_sign, where=rel != 0)
             pivot = S[k, k]
             det_sign *= np.sign(pivot)
             size = np.abs(pivot)
@@ -283,6 +277,19 @@ class SparseFactor:
                 value = value - np.sum(row * out[s.right], axis=0)
             out[s.c] = value * inverse
         return out
+
+
+def _swap_rows(A: np.ndarray, k: int, rel: np.ndarray) -> None:
+    """Exchange row k of A (rows first, instants last) with row k + rel, instant by instant (rel (N,) ≥ 0).
+
+    Whole rows are gathered and selected, so every operation runs over
+    contiguous instants (no scattered reads of the instants that move).
+    """
+    index = rel.reshape((1,) * (A.ndim - 1) + rel.shape)
+    chosen = np.take_along_axis(A[k:], index, axis=0)[0]
+    for i in range(1, A.shape[0] - k):
+        np.copyto(A[k + i], A[k], where=rel == i)
+    A[k] = chosen
 
 
 SPARSE_FROM = 64  # instants: from this many on, the planned elimination beats stacked LAPACK
