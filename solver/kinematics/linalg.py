@@ -41,6 +41,9 @@ class Step:
     """One planned pivot: row r, column c, rows below to update, columns to the right.
 
     The *_slot fields locate the entries in a compact Jacobian (see `bind`).
+    Where the pivot, or the multipliers (entries below over the pivot), are
+    the same at every configuration, `bind` works them out once:
+    `pivot_value`, `multipliers` (len(below),) — None where they vary.
     """
 
     r: int
@@ -51,6 +54,8 @@ class Step:
     below_slots: np.ndarray | None = None
     right_slots: np.ndarray | None = None
     grid_slots: np.ndarray | None = None
+    pivot_value: float | None = None
+    multipliers: np.ndarray | None = None
 
 
 class EliminationPlan:
@@ -61,6 +66,8 @@ class EliminationPlan:
     size and the largest of their column (so no multiplier exceeds 1), take
     the one whose elimination fills in least (Markowitz count).
     """
+
+    constant_sign = 1.0  # set by `bind`
 
     def __init__(self, samples: np.ndarray, pivot_columns: np.ndarray):
         """`samples` (n, n, S): scaled Φq at random configurations; `pivot_columns`: columns that may take a constant pivot."""
@@ -117,13 +124,37 @@ class EliminationPlan:
         out[np.ix_(self.rest_rows, self.rest_cols)] = True
         return out
 
-    def bind(self, slot_of: np.ndarray) -> None:
-        """Locate every entry the plan uses in a compact Jacobian; `slot_of` (n, n) gives each entry's slot."""
+    def bind(self, slot_of: np.ndarray, constants: np.ndarray | None = None) -> None:
+        """Locate every entry the plan uses in a compact Jacobian; `slot_of` (n, n) gives each entry's slot.
+
+        `constants` (one per slot) holds the value of each entry that is the
+        same at every configuration, NaN for the others.  Following the
+        elimination through them gives the pivots and multipliers that are
+        constant, so the factorization uses them as numbers (no division,
+        and ±1 multipliers become plain additions in the solves).
+        """
+        known = None if constants is None else np.array(constants, dtype=float)
+        self.constant_sign = 1.0  # product of the signs of the constant pivots
         for s in self.steps:
             s.pivot_slot = int(slot_of[s.r, s.c])
             s.below_slots = slot_of[s.below, s.c]
             s.right_slots = slot_of[s.r, s.right]
             s.grid_slots = slot_of[np.ix_(s.below, s.right)]
+            s.pivot_value = s.multipliers = None
+            if known is None:
+                continue
+            pivot = known[s.pivot_slot]
+            if np.isfinite(pivot) and pivot != 0.0:
+                s.pivot_value = float(pivot)
+                self.constant_sign *= float(np.sign(pivot))
+                below = known[s.below_slots]
+                if np.all(np.isfinite(below)):
+                    s.multipliers = below / pivot
+            if s.below.size and s.right.size:  # the update of the grid keeps it known only if all it uses is known
+                if s.multipliers is not None:
+                    known[s.grid_slots] -= s.multipliers[:, None] * known[s.right_slots][None, :]
+                else:
+                    known[s.grid_slots] = np.nan
         self.rest_slots = slot_of[np.ix_(self.rest_rows, self.rest_cols)]
 
 
@@ -206,16 +237,20 @@ class SparseFactor:
         V = values
         N = V.shape[1]
         self.multipliers = []
-        det_sign = np.full(N, float(plan.sign))
+        det_sign = np.full(N, float(plan.sign) * plan.constant_sign)
         for s in plan.steps:
-            pivot = V[s.pivot_slot]
-            if s.below.size:
-                L = V[s.below_slots] / pivot
+            if not s.below.size:
+                L = None
+            elif s.multipliers is not None:  # known: (len(below), 1) to broadcast over instants
+                L = s.multipliers[:, None]
+                if s.right.size:
+                    V[s.grid_slots] -= L[:, :, None] * V[s.right_slots][None]
+            else:
+                L = V[s.below_slots] / V[s.pivot_slot]
                 if s.right.size:
                     V[s.grid_slots] -= L[:, None, :] * V[s.right_slots][None]
-            else:
-                L = None
-            det_sign *= np.sign(pivot)
+            if s.pivot_value is None:
+                det_sign *= np.sign(V[s.pivot_slot])
             self.multipliers.append(L)
         self.V = V
         R, C = plan.rest_rows, plan.rest_cols
@@ -246,7 +281,10 @@ class SparseFactor:
         self.perm = perm
         self.det_sign = det_sign
         # back substitution reads the same pivot rows for every right-hand side: gather them once
-        self.back = [(V[s.right_slots] if s.right.size else None, 1.0 / V[s.pivot_slot]) for s in plan.steps]
+        self.back = [
+            (V[s.right_slots] if s.right.size else None, 1.0 / V[s.pivot_slot] if s.pivot_value is None else 1.0 / s.pivot_value)
+            for s in plan.steps
+        ]
         with np.errstate(divide="ignore"):
             self.condition = np.where(smallest > 0.0, largest / smallest, np.inf) if r else np.ones(N)
 
@@ -255,7 +293,17 @@ class SparseFactor:
         plan = self.plan
         x = b.copy()
         for s, L in zip(plan.steps, self.multipliers):
-            if L is not None:
+            if L is None:
+                continue
+            if s.below.size == 1 and s.multipliers is not None:  # one row, a known number: in place
+                row, factor = x[s.below[0]], float(L[0, 0])
+                if factor == 1.0:
+                    row -= x[s.r]
+                elif factor == -1.0:
+                    row += x[s.r]
+                else:
+                    row -= factor * x[s.r]
+            else:
                 x[s.below] -= L * x[s.r]
         out = np.empty_like(x)
         R, C = plan.rest_rows, plan.rest_cols
@@ -264,18 +312,26 @@ class SparseFactor:
             y = np.take_along_axis(x[R] * self.rest_row_scale, self.perm, axis=0)
             S = self.S
             for k in range(1, r):
-                y[k] -= np.sum(S[k, :k] * y[:k], axis=0)
+                y[k] -= S[k, 0] * y[0] if k == 1 else np.sum(S[k, :k] * y[:k], axis=0)
             for k in range(r - 1, -1, -1):
                 if k + 1 < r:
-                    y[k] -= np.sum(S[k, k + 1 :] * y[k + 1 :], axis=0)
+                    y[k] -= S[k, k + 1] * y[k + 1] if k + 2 == r else np.sum(S[k, k + 1 :] * y[k + 1 :], axis=0)
                 with np.errstate(all="ignore"):
                     y[k] /= S[k, k]
             out[C] = y * self.rest_col_scale
         for s, (row, inverse) in zip(reversed(plan.steps), reversed(self.back)):
             value = x[s.r]
             if row is not None:
-                value = value - np.sum(row * out[s.right], axis=0)
-            out[s.c] = value * inverse
+                if s.right.size == 1:
+                    value = value - row[0] * out[s.right[0]]
+                else:
+                    value = value - np.sum(row * out[s.right], axis=0)
+            if s.pivot_value == 1.0:
+                out[s.c] = value
+            elif s.pivot_value == -1.0:
+                np.negative(value, out=out[s.c])
+            else:
+                np.multiply(value, inverse, out=out[s.c])
         return out
 
 

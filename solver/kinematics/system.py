@@ -400,7 +400,8 @@ class System:
         self._fixed_slots = np.flatnonzero(~varying)
         self._fixed_values = values[self._fixed_slots][:, None]
         if plan is not None:
-            plan.bind(slot_of)
+            constants = np.where(varying, np.nan, values)  # entries the same at every configuration
+            plan.bind(slot_of, constants)
 
     def initial_guess(self) -> np.ndarray:
         """The rough initial coordinates of the moving bodies, (n,)."""
