@@ -125,6 +125,7 @@ class System:
         self._template = np.zeros((self.m, self.n + SLOT_COLUMNS))
         for g in self.groups:
             self._fill_constants(g)
+        self._find_affine()
         self._plan = None
         self._layout(None)
         if self.m == self.n and self.n:
@@ -155,6 +156,49 @@ class System:
                     g.variable.append((r, c))
         assert k == len(g.names)
 
+    def _find_affine(self) -> None:
+        """Split off the kinds that are affine in q, to evaluate them as one matrix product.
+
+        A kind whose Φq entries are all plain numbers has Φ(q) = Φ(0) + Φq q
+        (the drivers' angle coordinates, for instance); if its γ and η are
+        plain numbers too, they are those numbers.  Such kinds are not called
+        per evaluation: their rows come from `_affine_matrix` (rows × n),
+        `_affine_offset` (Φ at q = 0) and the constant γ, η.  `_active` lists
+        the groups still evaluated kind by kind.
+        """
+        self._active = []
+        rows, offset, gamma, eta = [], [], [], []
+        probe = self._poses(np.zeros((self.n, 1)))
+        still = self._rates(np.zeros((self.n, 1)))
+        for g in self.groups:
+            if g.variable:
+                self._active.append(g)
+                continue
+            poses, rates = self._slot_poses(g, probe), self._slot_rates(g, still)
+            g_rows = g.kind.gamma(g.par, poses, rates)
+            e_rows = g.kind.eta(g.par, poses, rates, rates)
+            if any(np.ndim(v) for v in list(g_rows) + list(e_rows)):
+                self._active.append(g)
+                continue
+            k = g.rows.shape[1]
+            for r, value in enumerate(g.kind.residual(g.par, *poses)):
+                rows.append(g.rows[r])
+                offset.append(np.broadcast_to(np.asarray(value, dtype=float), (k, 1))[:, 0])
+                gamma.append(np.full(k, float(g_rows[r])))
+                eta.append(np.full(k, float(e_rows[r])))
+        self._poses_shape = None
+        if rows:
+            self._affine_rows = np.concatenate(rows)
+            self._affine_matrix = self._template[self._affine_rows, : self.n].copy()
+            self._affine_offset = np.concatenate(offset)[:, None]
+            self._affine_gamma = np.concatenate(gamma)[:, None]
+            self._affine_eta = np.concatenate(eta)[:, None]
+        else:
+            self._affine_rows = None
+
+    def _affine_residual(self, out: np.ndarray, q: np.ndarray) -> None:
+        if self._affine_rows is not None:
+            out[self._affine_rows] = self._affine_matrix @ q + self._affine_offset
 
     # -- poses ---------------------------------------------------------------
     # Poses, rates and the per-kind gathers of them are temporaries of one
@@ -272,7 +316,8 @@ class System:
         self._kept = None
         arrays = self._poses(q)
         out = np.empty((self.m, q.shape[1]))
-        for g in self.groups:
+        self._affine_residual(out, q)
+        for g in self._active:
             self._scatter(out, g, g.kind.residual(g.par, *self._slot_poses(g, arrays)))
         out[self.first_driver_row :] -= drive[0]
         return out
@@ -285,7 +330,8 @@ class System:
         res = np.empty((self.m, N))
         values = self._buffer("jacobian", (self.slots + 2, N))  # valid until the next evaluation
         values[self._fixed_slots] = self._fixed_values
-        for g in self.groups:
+        self._affine_residual(res, q)
+        for g in self._active:
             poses = self._slot_poses(g, arrays)
             self._scatter(res, g, g.kind.residual(g.par, *poses))
             if g.variable:
@@ -312,8 +358,10 @@ class System:
         """γ (m, N) at q, q' (n, N); Φq q'' = γ."""
         arrays, rates = self._poses(q, reuse=True), self._rates(dq)
         out = np.empty((self.m, q.shape[1]))
+        if self._affine_rows is not None:
+            out[self._affine_rows] = self._affine_gamma
         kept = []
-        for g in self.groups:
+        for g in self._active:
             poses, speeds = self._slot_poses(g, arrays), self._slot_rates(g, rates)
             self._scatter(out, g, g.kind.gamma(g.par, poses, speeds))
             kept.append((poses, speeds))
@@ -333,7 +381,9 @@ class System:
             arrays, rates = self._poses(q, reuse=True), self._rates(dq)
         accels = self._rates(ddq, "accels")
         out = np.empty((self.m, q.shape[1]))
-        for i, g in enumerate(self.groups):
+        if self._affine_rows is not None:
+            out[self._affine_rows] = self._affine_eta
+        for i, g in enumerate(self._active):
             if kept is None:
                 poses, speeds = self._slot_poses(g, arrays), self._slot_rates(g, rates)
             else:
