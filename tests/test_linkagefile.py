@@ -281,7 +281,7 @@ BAD = [
     (lambda t: t.replace('y = "slider.N"', 'y = "slider.N"\ntoward = ["rod.A", "slider.N"]'),
      ['output "nose-y"', 'key "toward"', "transmission output only"]),
     (lambda t: t + "\n[linkage.loads]\ncrank = 1.0\n",
-     ['linkage "L"', 'key "loads"', "not read by this version"]),
+     ['linkage "L", loads', 'key "crank"', "not a known key"]),
     (lambda t: t.replace('[[linkage]]\nname = "L"', '[[linkage]]\nname = "L"\ncolour = "red"'),
      ['linkage "L"', 'key "colour"', "not a known key"]),
     (lambda t: t.replace('[[linkage]]\nname = "L"', '[[linkage]]\nname = "L.1"'),
