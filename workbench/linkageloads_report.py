@@ -198,6 +198,8 @@ def loads_block(study) -> Group:
         head.append("SERVO LIMIT EXCEEDED", style="bold red")
     elif any(s.checks for s in servos):
         head.append("servo within limits", style="green")
+    else:
+        head.append("no servo limits to check" if servos else "no servo given", style="dim")
     lines = [head]
     loads = spec.loads
     masses = ", ".join(f"{b.name} {fmt(b.mass)} kg" for b in loads.bodies) or "none (massless bodies)"
