@@ -32,6 +32,10 @@ class Pose:
         self.x, self.y, self.phi, self.c, self.s = x, y, phi, c, s
         self._rotated = {}
 
+    def forget(self) -> None:
+        """Drop remembered rotations (the arrays it views now hold other poses)."""
+        self._rotated.clear()
+
     def rotate(self, local: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """a = A(φ) s' for body-local vectors `local` shaped (2, k, 1) (m): components (a_x, a_y)."""
         key = id(local)

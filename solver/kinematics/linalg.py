@@ -185,7 +185,7 @@ class DenseFactor:
     def __init__(self, jac, row_scale, col_scale):
         self.row_scale = row_scale[:, None]
         self.col_scale = col_scale[:, None]
-        self.scaled = np.moveaxis(jac * row_scale[:, None, None] * col_scale[None, :, None], 2, 0)
+        self.scaled = (jac * row_scale[:, None, None] * col_scale[None, :, None]).transpose(2, 0, 1)
         try:
             self.inverse = np.linalg.inv(self.scaled)
         except np.linalg.LinAlgError:  # an exactly singular instant: invert one by one
@@ -210,8 +210,8 @@ class DenseFactor:
         """1-norm condition number of scaled Φq per instant (inf where singular)."""
         if self._condition is None:
             with np.errstate(all="ignore"):
-                norm = np.max(np.sum(np.abs(self.scaled), axis=1), axis=1)
-                inv_norm = np.max(np.sum(np.abs(self.inverse), axis=1), axis=1)
+                norm = np.abs(self.scaled).sum(axis=1).max(axis=1)
+                inv_norm = np.abs(self.inverse).sum(axis=1).max(axis=1)
                 cond = norm * inv_norm
             self._condition = np.where(np.isfinite(cond), cond, np.inf)
         return self._condition

@@ -91,9 +91,9 @@ def branch_defect(system, q_a, dq_a, ddq_a, q_b, dq_b, ddq_b, h):
     """Euler–Maclaurin defect of the steps a→b as a share of the step (scaled); arrays (n, N) or (n,)."""
     defect = q_b - q_a - 0.5 * h * (dq_a + dq_b) + h * h / 12.0 * (ddq_b - ddq_a)
     scale = system.col_scale if q_a.ndim == 1 else system.col_scale[:, None]
-    size = np.max(np.abs((q_b - q_a) / scale), axis=0)
-    size = size + np.max(np.abs(h * (dq_a + dq_b) / scale), axis=0) * 0.5
-    return np.max(np.abs(defect / scale), axis=0) / np.maximum(size, 1e-300)
+    size = np.abs((q_b - q_a) / scale).max(axis=0)
+    size = size + np.abs(h * (dq_a + dq_b) / scale).max(axis=0) * 0.5
+    return np.abs(defect / scale).max(axis=0) / np.maximum(size, 1e-300)
 
 
 def step(system, state: State, h: float, theta: float | None = None, tolerance: float = POSITION_TOLERANCE):

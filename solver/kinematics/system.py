@@ -97,6 +97,7 @@ class System:
         self._workspace = None  # scratch memory, borrowed on first use (workspace.py)
         self._give_back = None
         self._poses_shape = None  # shape of the poses buffer while it holds consistent poses (x, y, φ, cos, sin)
+        self._slot_views: dict = {}  # (key, group) -> (gathered buffer, Pose or Rates objects viewing it)
         self._kept = None  # poses and rates of the last gamma call, for eta(after_gamma=True)
 
         entries = [(j.name, j.resolve(mechanism)) for j in mechanism.joints.values()]
@@ -221,6 +222,7 @@ class System:
             self._workspace = None
             self._kept = None
             self._poses_shape = None
+            self._slot_views.clear()
 
     def _poses(self, q: np.ndarray, reuse: bool = False) -> np.ndarray:
         """(5, B+1, N): x, y, φ, cos φ, sin φ of every body; the ground (last) at rest at the origin.
@@ -281,13 +283,27 @@ class System:
         shape = (arrays.shape[0], g.slots.shape[0], g.slots.shape[1], arrays.shape[2])
         return np.take(arrays, g.slots, axis=1, out=self._buffer((key, g.number), shape), mode="clip")
 
+    # The Pose and Rates objects viewing a gathered buffer are made once per
+    # buffer and handed out again (a Pose forgets its remembered rotations).
     def _slot_poses(self, g: Group, arrays) -> list[Pose]:
         taken = self._take(g, arrays, "pose")  # (5, slots, k, N)
-        return [Pose(*taken[:, t]) for t in range(taken.shape[1])]
+        known = self._slot_views.get(("pose", g.number))
+        if known is not None and known[0] is taken:
+            for pose in known[1]:
+                pose.forget()
+            return known[1]
+        poses = [Pose(*taken[:, t]) for t in range(taken.shape[1])]
+        self._slot_views[("pose", g.number)] = (taken, poses)
+        return poses
 
     def _slot_rates(self, g: Group, arrays, key="rates") -> list[Rates]:
         taken = self._take(g, arrays, key)
-        return [Rates(*taken[:, t]) for t in range(taken.shape[1])]
+        known = self._slot_views.get((key, g.number))
+        if known is not None and known[0] is taken:
+            return known[1]
+        rates = [Rates(*taken[:, t]) for t in range(taken.shape[1])]
+        self._slot_views[(key, g.number)] = (taken, rates)
+        return rates
 
     def stack_params(self, bindings):
         return stack_params(bindings)
@@ -305,11 +321,12 @@ class System:
     def _scatter(out, g: Group, values) -> None:
         """Write a kind's rows (arrays (k, N) or plain numbers) into out (m, N)."""
         shape = (g.rows.shape[1], out.shape[1])
-        if all(getattr(v, "shape", None) == shape for v in values):
-            out[g.flat_rows] = np.concatenate(values)
-            return
-        for r, value in enumerate(values):
-            out[g.rows[r]] = value
+        for v in values:
+            if v.__class__ is not np.ndarray or v.shape != shape:
+                for r, value in enumerate(values):
+                    out[g.rows[r]] = value
+                return
+        out[g.flat_rows] = np.concatenate(values)
 
     def residual(self, q: np.ndarray, drive: np.ndarray) -> np.ndarray:
         """Φ (m, N) at coordinates q (n, N) with driver values `drive` from `drive()`."""
@@ -338,9 +355,13 @@ class System:
                 partials = g.kind.jacobian(g.par, *poses)
                 shape = (g.rows.shape[1], N)
                 parts = [partials[r][c] for r, c in g.variable]
-                if any(v.shape != shape for v in parts):
-                    parts = [np.broadcast_to(v, shape) for v in parts]
-                values[g.var_slots] = np.concatenate(parts)
+                try:
+                    block = np.concatenate(parts)
+                except ValueError:  # mixed shapes
+                    block = None
+                if block is None or block.shape != (len(parts) * shape[0], N):
+                    block = np.concatenate([np.broadcast_to(v, shape) for v in parts])
+                values[g.var_slots] = block
         res[self.first_driver_row :] -= drive[0]
         return res, Jacobian(values, self)
 
@@ -397,11 +418,11 @@ class System:
     # -- scaling and naming --------------------------------------------------
     def scaled_step(self, dq: np.ndarray) -> np.ndarray:
         """max |Δq| per instant, lengths in units of L, angles in rad."""
-        return np.max(np.abs(dq / self.col_scale[:, None]), axis=0)
+        return np.abs(dq / self.col_scale[:, None]).max(axis=0)
 
     def scaled_residual(self, res: np.ndarray) -> np.ndarray:
         """max |Φ| per instant, length rows in units of L, angle rows in rad."""
-        return np.max(np.abs(res * self.row_scale[:, None]), axis=0)
+        return np.abs(res * self.row_scale[:, None]).max(axis=0)
 
     def scaled_jacobian(self, jac: np.ndarray) -> np.ndarray:
         """Φq with rows and columns scaled to be dimensionless (m, n, N)."""

@@ -22,23 +22,38 @@ POOL_SIZE = 4  # idle workspaces kept: one per system alive at once in typical u
 MAX_POOLED_BYTES = 64 * 2**20  # a workspace grown beyond this (huge instant counts) is not kept
 
 
-class Workspace:
-    """Named scratch arrays, each a prefix of a flat store that only grows."""
+VIEWS_KEPT = 256  # shaped views remembered per workspace (a handful per instant count in use)
 
-    __slots__ = ("stores",)
+
+class Workspace:
+    """Named scratch arrays, each a prefix of a flat store that only grows.
+
+    The shaped view of a (name, shape) is made once and handed out again
+    (the same object) until its store has to grow.
+    """
+
+    __slots__ = ("stores", "views")
 
     def __init__(self):
         self.stores: dict = {}
+        self.views: dict = {}
 
     def array(self, key, shape: tuple) -> np.ndarray:
         """A C-contiguous float array of `shape` under name `key` (contents undefined)."""
+        view = self.views.get((key, shape))
+        if view is not None:
+            return view
         size = 1
         for extent in shape:
             size *= extent
         store = self.stores.get(key)
         if store is None or store.size < size:
             store = self.stores[key] = np.empty(size)
-        return store[:size].reshape(shape)
+            self.views = {k: v for k, v in self.views.items() if k[0] != key}  # views of the old store
+        if len(self.views) >= VIEWS_KEPT:
+            self.views.clear()
+        view = self.views[(key, shape)] = store[:size].reshape(shape)
+        return view
 
     def nbytes(self) -> int:
         return sum(store.nbytes for store in self.stores.values())
