@@ -16,7 +16,9 @@ divided by the model's length scale L, angles as they are.
 
 from __future__ import annotations
 
+import threading
 import weakref
+from collections import OrderedDict
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -30,6 +32,7 @@ from .motion import evaluate_motion
 from .workspace import borrow, give_back
 
 SLOT_COLUMNS = 3  # x, y, φ per body
+COMPILED_KEPT = 32  # mechanism structures whose compiled form is remembered (a re-solve or a motion edit reuses it)
 TRIG_REUSE_FROM = 64  # instants: from this many on, moving the poses by a Newton step beats cos and sin afresh
 GROUND_POSE = np.array([[0.0], [0.0], [0.0], [1.0], [0.0]])  # x, y, φ, cos φ, sin φ of the ground
 ADVANCE_LIMIT = 1e-4  # rad: a turn this small is applied to cos, sin by series to below round-off (error δ⁴/24)
@@ -83,8 +86,36 @@ def stack_params(bindings) -> dict[str, np.ndarray]:
     return out
 
 
+# What compiling a mechanism produces, by structure: the bodies, the length scale,
+# and every joint and driver coordinate with its kind, bodies and numbers (motions
+# are not part of it).  Shared read-only between the Systems of equal structure.
+_compiled: OrderedDict = OrderedDict()
+_compiled_lock = threading.Lock()
+COMPILED_FIELDS = (
+    "row_names", "row_units", "m", "first_driver_row", "groups", "row_scale", "col_scale", "_template",
+    "_active", "_affine_rows", "_affine_matrix", "_affine_offset", "_affine_gamma", "_affine_eta",
+    "_plan", "slots", "slot_entries", "_fixed_slots", "_fixed_values",
+)
+
+
+def _structure_key(bodies, length, bound, drivers) -> tuple:
+    """Everything compiling depends on, hashable: (name, item, Binding) triples of joints then drivers."""
+    items = []
+    for name, item, binding in bound:
+        params = tuple(
+            (key, np.shape(value), np.asarray(value, dtype=float).tobytes()) for key, value in sorted(binding.params.items())
+        )
+        items.append((name, type(item), item.ROWS, tuple(item.ROW_UNITS), tuple(binding.bodies), params))
+    return (tuple(bodies), float(length), drivers, tuple(items))
+
+
 class System:
-    """Evaluates the constraint equations of a `Mechanism` and their derivatives."""
+    """Evaluates the constraint equations of a `Mechanism` and their derivatives.
+
+    Compiling (binding, constant Jacobian entries, the elimination plan) is
+    done once per mechanism structure and remembered (COMPILED_KEPT): a
+    System of a mechanism solved before starts from the same compiled form.
+    """
 
     def __init__(self, mechanism: Mechanism):
         self.mechanism = mechanism
@@ -105,18 +136,36 @@ class System:
         entries += [(d.name, d.coordinate.resolve(mechanism)) for d in drivers]
         self.motions = [d.motion for d in drivers]
         self.driver_names = [d.name for d in drivers]
+        bound = [(name, item, item.bind(mechanism)) for name, item in entries]
 
+        key = _structure_key(self.bodies, self.length, bound, len(drivers))
+        with _compiled_lock:
+            compiled = _compiled.get(key)
+            if compiled is not None:
+                _compiled.move_to_end(key)
+        if compiled is not None:
+            self.__dict__.update(compiled)
+            return
+        self._compile(bound, len(drivers), index)
+        compiled = {k: self.__dict__[k] for k in COMPILED_FIELDS if k in self.__dict__}
+        with _compiled_lock:
+            _compiled[key] = compiled
+            while len(_compiled) > COMPILED_KEPT:
+                _compiled.popitem(last=False)
+
+    # -- compile ---------------------------------------------------------------
+    def _compile(self, bound, drivers: int, index) -> None:
+        """Rows, kinds and their instances, constant entries, affine kinds, layout and plan."""
         self.row_names: list[str] = []  # joint or driver owning each row
         self.row_units: list[str] = []
         by_kind: dict[type, list[tuple[str, object, object, list[int]]]] = {}
-        for number, (name, item) in enumerate(entries):
-            binding = item.bind(mechanism)
+        for name, item, binding in bound:
             rows = list(range(len(self.row_names), len(self.row_names) + item.ROWS))
             self.row_names += [name] * item.ROWS
             self.row_units += list(item.ROW_UNITS)
             by_kind.setdefault(type(item), []).append((name, item, binding, rows))
         self.m = len(self.row_names)
-        self.first_driver_row = self.m - len(drivers)  # driver rows come last
+        self.first_driver_row = self.m - drivers  # driver rows come last
         self.groups = [self._group(kind, items, index) for kind, items in by_kind.items()]
         for number, g in enumerate(self.groups):
             g.number = number
@@ -133,7 +182,6 @@ class System:
             self._plan = self._learn_plan()
             self._layout(self._plan)
 
-    # -- compile ---------------------------------------------------------------
     def _group(self, kind, items, index) -> Group:
         bindings = [b for _, _, b, _ in items]
         slots = np.array([[index[name] for name in b.bodies] for b in bindings]).T
