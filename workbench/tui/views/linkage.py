@@ -44,7 +44,7 @@ COARSE_STEP = 5.0  # deg per ← →
 FINE_STEP = 1.0  # deg per shift+← →
 RATES = ("velocity", "acceleration", "jerk")
 PLOT_ROWS = (7, 13)  # least and most rows for the plots; a third of the view between them
-READOUT_WIDTH = 46  # columns the readout needs ("acceleration -4885 mm/s² · jerk -2446 mm/s³")
+READOUT_WIDTH = 52  # columns the readout needs ("acceleration -12,345 deg/s² · jerk -1.234e+06 deg/s³")
 SIDE_FRAME = 2  # the side's left padding and its scroll bar
 WIDE_DRAWING = 40  # the drawing gives way to the bars only while it keeps this many columns
 MIN_DRAWING = 20  # columns
@@ -52,7 +52,6 @@ ABOVE_GAIN = 1.2  # the drawing goes above only when that draws it this much lar
 MIN_DRAWING_ROWS = 6  # rows the drawing keeps above the readout and the table
 CACHE = 8  # studies kept (by what they depend on): stepping through linkages and undo cost no solve
 SPECK = 1e-6  # a value below this share of its quantity's largest over the cycle is shown as 0 (rounding)
-STOP_GAP = 1e-9  # deg: an angle this far past the last grid instant is the dead point's own instant
 
 
 class LinkageBar(Static):
@@ -81,8 +80,8 @@ class LinkageView(WorkbenchView):
     #lk-top.-above { layout: vertical; }
     #lk-top.-above #lk-drawing { width: 100%; height: 1fr; }
     #lk-top.-above #lk-side { layout: horizontal; width: 100%; height: 12; }
-    #lk-top.-above #lk-info { width: 1fr; margin-bottom: 0; padding-right: 2; }
-    #lk-top.-above #lk-report { width: auto; }
+    #lk-top.-above #lk-info { width: 54; margin-bottom: 0; padding-right: 2; }
+    #lk-top.-above #lk-report { width: 1fr; }
     LinkageView.-zoom #lk-report, LinkageView.-zoom #lk-legend-last {
         display: none;
     }
@@ -354,9 +353,7 @@ class LinkageView(WorkbenchView):
             unit = trace.unit
             shown = {q: num(x if abs(x) > SPECK * trace.largest(q) else 0.0) for q, x in v.items()}
             text.append(f": {self.output_name} {shown['position']} {unit}")
-            if self.angle > trace.grid_end + STOP_GAP:  # the dead point itself: its rates run away
-                text.append("\nits rates grow without bound here (dead point)", style=OVER_STYLE)
-            else:
+            if not stopped:
                 speed = shown["velocity"]
                 moving = "↑ " if speed != "0" and v["velocity"] > 0 else "↓ " if speed != "0" else ""
                 if speed == "0" and shown["acceleration"] == "0":
@@ -364,6 +361,8 @@ class LinkageView(WorkbenchView):
                 else:
                     text.append(f" {moving}{speed} {unit}/s\n")
                 text.append(f"acceleration {shown['acceleration']} {unit}/s² · jerk {shown['jerk']} {unit}/s³")
+        if stopped:  # the dead point itself: the rates grow without bound there
+            text.append("\n✗ it stops here: a dead point, its rates grow without bound", style=OVER_STYLE)
         drivers = []
         for d in entry.spec.drivers:
             value = driver_value(entry, d.name, self.angle)
@@ -372,8 +371,6 @@ class LinkageView(WorkbenchView):
                 drivers.append(f"{d.name} at {shown}" + (f" (axis {d.axis})" if d.axis else ""))
         if drivers:
             text.append("\ndriver " + " · ".join(drivers), style="dim")
-        if stopped:
-            text.append(f"\n✗ it stops here, at {stop_text(entry.last)}", style=OVER_STYLE)
         return text
 
     def _refresh_bar(self) -> None:
@@ -419,6 +416,9 @@ class LinkageView(WorkbenchView):
 
     def action_step(self, step: float) -> None:
         entry = self.entry
+        if entry is not None and not entry.runs:
+            self.post_message(Status(f"linkage {entry.name} does not move: {status_words(entry)[0]}", error=True))
+            return
         if entry is not None and entry.runs and not entry.solved:  # a linkage that stops: no wrap past its ends
             target = self.angle + step
             if target > entry.last:

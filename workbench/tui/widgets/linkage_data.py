@@ -78,12 +78,6 @@ class Trace:
         _, values = self.plotted(quantity)
         return float(np.max(np.abs(values))) if values.size else 0.0
 
-    @property
-    def grid_end(self) -> float:
-        """The last master angle (deg) on the study's grid: past it lies only a dead point's instant."""
-        n = self.theta.size if self.grid < 0 else self.grid
-        return float(self.theta[n - 1]) if n else 0.0
-
     def plotted(self, quantity: str) -> tuple[np.ndarray, np.ndarray]:
         """(master deg, values) on the study's grid, for the plots."""
         n = self.theta.size if self.grid < 0 else self.grid

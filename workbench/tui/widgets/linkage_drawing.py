@@ -35,10 +35,10 @@ SLIDER = "■"
 WELD = "◆"
 OUTPUT_POINT = "◎"
 INVOLVED_MARK = "!"
-BODY_STYLES = ("bright_cyan", "bright_green", "bright_magenta", "bright_yellow", "bright_blue", "cyan",
-               "green", "magenta")  # one per body, in file order (16-colour names)
+BODY_STYLES = ("bright_cyan", "bright_green", "bright_yellow", "bright_blue", "cyan", "green", "yellow",
+               "blue")  # one per body, in file order (16-colour names; no red or magenta: those mark a dead point)
 GUIDE = ("bright_black", 2.0)  # (style, one dot every n dots along the line)
-PATH = ("yellow", 3.0)
+PATH = ("white", 3.0)
 JOINT_STYLE = "bold bright_white"
 INVOLVED_STYLE = "bold red"
 LABEL_STYLE = "bright_black"

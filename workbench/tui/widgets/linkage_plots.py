@@ -54,7 +54,7 @@ def output_plot(entry: LinkageEntry, output: str, quantity: str) -> PlotSpec | N
     parts = [f"{name} [{unit}]"]
     lines = [RefLine(0.0, "zero")] if quantity != "position" else []
     study = entry.output_study(output)
-    stop = "" if entry.solved else f"stops at {degrees(round(entry.last, 2))}"
+    stop = "" if entry.solved else f"stops at {entry.last:.2f}°"
     if quantity == "position":
         if study is not None:
             parts.append(f"{num(study.minimum.value)} … {num(study.maximum.value)} {trace.unit}")

@@ -222,7 +222,7 @@ def side_rows(entry: LinkageEntry | None, output: str | None) -> int:
     """Rows the readout or the report needs, whichever is taller, when they stand side by side."""
     if entry is None:
         return READOUT_ROWS
-    drivers = max(1, len(entry.spec.drivers))
+    drivers = sum(2 if d.axis else 1 for d in entry.spec.drivers) or 1  # one following an axis takes two lines
     if entry.status != SOLVED:
         report = len(trouble_lines(entry)) + drivers
     elif output is None:
@@ -230,6 +230,7 @@ def side_rows(entry: LinkageEntry | None, output: str | None) -> int:
     else:
         report = 1 + 6 + 1 + len(note_lines(entry, output)) + drivers  # header, table, max speed
         report += 1 if motor_pin(entry, entry.spec.output(output)) else 0  # a longer header
+        report += 1  # a header or a note that wraps
     return max(READOUT_ROWS, report)
 
 
