@@ -234,3 +234,22 @@ def test_a_lead_screw_sizes_a_motor_on_a_travel(capsys, tmp_path):
     peak_mm_s = d["peak_speed"]["value"]
     assert peak_mm_s == pytest.approx(80.0 * 1.760 / (150.0 / 360.0), rel=1e-3)  # modified sine: Cv·h/T (DESIGN §3)
     assert d["servo"]["motor"]["peak_speed"]["value"] == pytest.approx(peak_mm_s / 20.0 * 60.0, rel=1e-9)
+
+
+def test_the_readme_example_reads_and_matches_the_presets():
+    from pathlib import Path
+
+    readme = (Path(__file__).resolve().parent.parent / "README.md").read_text()
+    section = readme[readme.index("### Linkage loads"):]
+    start = section.index("```toml") + len("```toml")
+    example = section[start: section.index("```", start)]
+    torque = example[example.index("[[linkage.loads.torque]]"): example.index("[[linkage.loads.servo]]")]
+    pusher = PUSHER[: PUSHER.index("[linkage.loads]")] + example.replace(torque, "")
+    loads = linkage_specs(loads_project(pusher, "README.md"))[0].loads
+    preset = pusher_loads()
+    assert loads.gravity == preset.gravity and loads.body("rod") == preset.body("rod")
+    assert loads.forces == preset.forces and loads.servos == preset.servos
+    flap_text = preset_path("crank-rocker").read_text()
+    flap = flap_text[: flap_text.index("[linkage.loads]")] + "[linkage.loads]\n" + torque
+    flap_torque = linkage_specs(load_project(preset_path("crank-rocker")))[0].loads.torques[0]
+    assert linkage_specs(loads_project(flap, "README.md"))[0].loads.torques[0] == replace(flap_torque, name=None)
