@@ -18,7 +18,6 @@ from workbench.linkageloads import (
     LoadsSpec,
     ServoLimitsSpec,
     ServoSpec,
-    TorqueSpec,
     gearing_of,
     loading_of,
     servo_limits_of,

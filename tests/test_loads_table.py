@@ -20,9 +20,8 @@ import numpy as np
 import pytest
 from test_linkageloads import CRANK, M4, OFFSET, PUSHER_SPEED, R4, RATIO, ROD, SPRING, G, slider_crank_torque
 
-from workbench.camfile import find_cam
+from workbench.camfile import find_cam, study_cam
 from workbench.camreport import cam_loads
-from workbench.camfile import study_cam
 from workbench.cli import main
 from workbench.presets import preset_path
 from workbench.projectfile import load_project

@@ -27,8 +27,6 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, replace
 
-import numpy as np
-
 from motionlaws.peaks import LimitCheck, Peak
 from solver.kinematics import INSTANTS, SOLVED, JointCoordinate, System
 from solver.loads import DriveLoad, JointReaction, LinkageLoads, LoadsError, ServoSizing, linkage_loads, servo_sizing
