@@ -182,10 +182,13 @@ class DenseFactor:
     only (a Newton iteration needs neither).
     """
 
-    def __init__(self, jac, row_scale, col_scale):
+    def __init__(self, jac, row_scale, col_scale, scaled=None):
+        """Φq `jac` (m, n, N) dense, or already scaled and stacked as `scaled` (N, m, n) (then `jac` is unused)."""
         self.row_scale = row_scale[:, None]
         self.col_scale = col_scale[:, None]
-        self.scaled = (jac * row_scale[:, None, None] * col_scale[None, :, None]).transpose(2, 0, 1)
+        if scaled is None:
+            scaled = (jac * row_scale[:, None, None] * col_scale[None, :, None]).transpose(2, 0, 1)
+        self.scaled = scaled
         try:
             self.inverse = np.linalg.inv(self.scaled)
         except np.linalg.LinAlgError:  # an exactly singular instant: invert one by one
@@ -355,4 +358,4 @@ def factor(plan: EliminationPlan | None, jac, row_scale, col_scale):
     """The better factorization of Φq for its number of instants; `jac` a System `Jacobian` (consumed)."""
     if plan is not None and jac.values.shape[1] >= SPARSE_FROM:
         return SparseFactor(plan, jac.values, row_scale, col_scale)
-    return DenseFactor(jac.dense(), row_scale, col_scale)
+    return DenseFactor(None, row_scale, col_scale, scaled=jac.scaled_stack(row_scale, col_scale))

@@ -89,10 +89,11 @@ def solve_instant(system, theta: float, guess: np.ndarray, tolerance: float = PO
 
 def branch_defect(system, q_a, dq_a, ddq_a, q_b, dq_b, ddq_b, h):
     """Euler–Maclaurin defect of the steps a→b as a share of the step (scaled); arrays (n, N) or (n,)."""
-    defect = q_b - q_a - 0.5 * h * (dq_a + dq_b) + h * h / 12.0 * (ddq_b - ddq_a)
+    step, mean = q_b - q_a, dq_a + dq_b
+    defect = step - 0.5 * h * mean + h * h / 12.0 * (ddq_b - ddq_a)
     scale = system.col_scale if q_a.ndim == 1 else system.col_scale[:, None]
-    size = np.abs((q_b - q_a) / scale).max(axis=0)
-    size = size + np.abs(h * (dq_a + dq_b) / scale).max(axis=0) * 0.5
+    size = np.abs(step / scale).max(axis=0)
+    size = size + np.abs(h * mean / scale).max(axis=0) * 0.5
     return np.abs(defect / scale).max(axis=0) / np.maximum(size, 1e-300)
 
 

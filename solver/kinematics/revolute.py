@@ -16,7 +16,6 @@ from dataclasses import dataclass
 
 from .base import LENGTH, Binding, Constraint, distinct_bodies
 from .coordinates import RelativeAngle
-from .frames import perp
 
 
 @dataclass(frozen=True)
@@ -65,17 +64,12 @@ class Revolute(Constraint):
 
     @classmethod
     def eta(cls, par, poses, rates, accels):
-        rows = [0.0, 0.0]
-        for pose, rate, accel, key, sign in (
-            (poses[0], rates[0], accels[0], "si", 1.0),
-            (poses[1], rates[1], accels[1], "sj", -1.0),
-        ):
-            ax, ay = pose.rotate(par[key])
-            px, py = perp(ax, ay)
-            w = rate.phi
-            k = 3.0 * w * accel.phi
-            w3 = w * w * w
-            rows[0] = rows[0] + sign * (ax * k + px * w3)
-            rows[1] = rows[1] + sign * (ay * k + py * w3)
-        return rows
+        pi, pj = poses
+        aix, aiy = pi.rotate(par["si"])
+        ajx, ajy = pj.rotate(par["sj"])
+        wi, wj = rates[0].phi, rates[1].phi
+        ki, kj = 3.0 * wi * accels[0].phi, 3.0 * wj * accels[1].phi  # 3 ω α
+        ci, cj = wi * wi * wi, wj * wj * wj  # ω³
+        # a 3ωα + perp(a) ω³ with perp(a) = (−a_y, a_x), body i minus body j
+        return [aix * ki - aiy * ci - (ajx * kj - ajy * cj), aiy * ki + aix * ci - (ajy * kj + ajx * cj)]
 

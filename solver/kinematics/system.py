@@ -76,6 +76,15 @@ class Jacobian:
         out[sys_.slot_entries] = self.values[: sys_.slots]
         return out.reshape(sys_.m, sys_.n, -1)
 
+    def scaled_stack(self, row_scale: np.ndarray, col_scale: np.ndarray) -> np.ndarray:
+        """Φq with rows and columns scaled (as System.scaled_jacobian), instants first: (N, m, n)."""
+        sys_ = self.system
+        rows, cols = sys_.slot_rows, sys_.slot_cols
+        scaled = self.values[: sys_.slots] * row_scale[rows][:, None] * col_scale[cols][:, None]
+        out = np.zeros((self.values.shape[1], sys_.m * sys_.n))
+        out[:, sys_.slot_entries] = scaled.T
+        return out.reshape(-1, sys_.m, sys_.n)
+
 
 def stack_params(bindings) -> dict[str, np.ndarray]:
     """Parameters of several bindings of one kind, component first: (d, k, 1) each."""
@@ -94,7 +103,7 @@ _compiled_lock = threading.Lock()
 COMPILED_FIELDS = (
     "row_names", "row_units", "m", "first_driver_row", "groups", "row_scale", "col_scale", "_template",
     "_active", "_affine_rows", "_affine_matrix", "_affine_offset", "_affine_gamma", "_affine_eta",
-    "_plan", "slots", "slot_entries", "_fixed_slots", "_fixed_values",
+    "_plan", "slots", "slot_entries", "slot_rows", "slot_cols", "_fixed_slots", "_fixed_values",
 )
 
 
@@ -506,6 +515,7 @@ class System:
         self.slots = flat.size
         slot_of.ravel()[flat] = np.arange(self.slots)
         self.slot_entries = flat  # flat (row·n + col) index of each slot
+        self.slot_rows, self.slot_cols = np.divmod(flat, n)
         zero, ground = self.slots, self.slots + 1  # the always-zero row; the row for partials w.r.t. the ground
         slot_of[slot_of < 0] = zero
         varying = np.zeros(self.slots + 2, dtype=bool)
