@@ -31,6 +31,7 @@ from workbench.cli import main
 from workbench.linkagefile import linkage_specs
 from workbench.linkageloads_study import study_loads
 from workbench.linkagesolve import solve_linkage
+from workbench.linkagestudy import study_linkage
 from workbench.presets import preset_path
 from workbench.projectfile import load_project
 
@@ -249,3 +250,22 @@ def test_a_dead_point_leaves_the_loads_partial_and_failed(tmp_path, capsys):
     code, doc = check_json(path, capsys)
     entry = doc["linkage_loads"][0]
     assert code == 1 and entry["ok"] is False and entry["complete"] is False and "limit position" in entry["message"]
+
+
+def test_a_motor_on_the_rocker_is_refused_at_the_rocker_s_limit_position(tmp_path, capsys):
+    """Driven from the rocker, a crank-rocker has dead points where the rocker turns back (crank and
+    coupler in line, Norton, Design of Machinery, Grashof linkages; from memory): the motor there would
+    need an unbounded torque.  The angle said is the first one, where the kinematic study finds the
+    rocker's lowest angle."""
+    path = tmp_path / "rocker-motor.toml"
+    path.write_text(preset_path("crank-rocker").read_text() + '\n[[linkage.loads.servo]]\ndriver = "shaft"\nat = "O4"\n')
+    project = load_project(path)
+    spec = linkage_specs(project)[0]
+    swing = study_linkage(project, spec).outputs[0]
+    assert swing.name == "swing"
+    code, doc = check_json(path, capsys)
+    entry = doc["linkage_loads"][0]
+    assert code == 1 and entry["ok"] is False and entry["status"] == "invalid"
+    assert 'servo "shaft": key "at": angle at pin O4 stands still at master' in entry["message"]
+    said = float(entry["message"].split("at master ")[1].split("°")[0])
+    assert said == pytest.approx(swing.minimum.at, abs=2e-3)  # 4 significant digits in the message

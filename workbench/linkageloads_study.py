@@ -27,13 +27,17 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, replace
 
+import numpy as np
+
 from motionlaws.peaks import LimitCheck, Peak
 from solver.kinematics import INSTANTS, SOLVED, JointCoordinate, System
 from solver.loads import DriveLoad, JointReaction, LinkageLoads, LoadsError, ServoSizing, linkage_loads, servo_sizing
+from solver.kinematics.outputs import CoordinateProbe
 from solver.loads.linkage_peaks import refined_peak
+from solver.loads.linkage_power import velocity_coefficients
 
 from . import linkageloads
-from .linkagefile import DriverSpec, LinkageSpec, Target, target_unit
+from .linkagefile import DriverSpec, LinkageSpec, Target, describe, target_unit
 from .linkagemodel import LinkageFault, build_linkage
 from .linkagesolve import FULL_TURN, solve_linkage
 
@@ -45,6 +49,7 @@ CAUTION = (
 RPM = 60.0 / (2.0 * math.pi)  # rev/min per rad/s
 DEG = 180.0 / math.pi  # deg per rad
 MM = 1e3  # mm per m
+STALL = 1e-9  # |∂φ_at/∂d| below this share of its largest counts as standing still
 
 
 class LoadsFault(ValueError):
@@ -178,9 +183,45 @@ def motor_spec(spec: LinkageSpec) -> LinkageSpec:
     return replace(spec, drivers=tuple(drivers))
 
 
+def stall_at(result, driver: str, joint: str) -> float | None:
+    """Master angle (deg) where `joint` stands still while `driver` moves the linkage, or None.
+
+    There ∂φ_joint/∂d — from Φq u = e_d, u = ∂q/∂d, defined at dwells too —
+    vanishes or changes sign: seen from the joint the linkage is at a dead
+    point, and a motor there would need an unbounded torque.
+    """
+    system = result.system
+    u = velocity_coefficients(system, result.q)[:, :, list(system.driver_names).index(driver)]
+    zeros = np.zeros_like(u.T)
+    coupling = CoordinateProbe(system, JointCoordinate(joint)).evaluate(result.q.T, u.T, zeros, zeros)[1]
+    largest = float(np.max(np.abs(coupling)))
+    sign = np.sign(np.where(np.abs(coupling) <= STALL * largest, 0.0, coupling))
+    bad = np.flatnonzero((sign == 0.0) | (sign != np.roll(sign, -1)))  # the last sample neighbours the first
+    if largest == 0.0:
+        return 0.0
+    if bad.size == 0:
+        return None
+    i = int(bad[0])
+    j = (i + 1) % coupling.size
+    t0, t1 = result.theta[i], result.theta[j] + (2 * math.pi if j == 0 else 0.0)
+    c0, c1 = coupling[i], coupling[j]
+    share = c0 / (c0 - c1) if sign[i] != 0.0 and c0 != c1 else 0.0  # the zero between the samples, linearly
+    return math.degrees(float(t0 + share * (t1 - t0))) % FULL_TURN
+
+
 def motor_result(project, spec: LinkageSpec, result):
     """`result` (the solved motion) with the constraint system of `motor_spec(spec)`: the same q, q', q''
-    with each `at` servo's joint holding the driving row.  Raises `LoadsFault` when that model cannot be built."""
+    with each `at` servo's joint holding the driving row.  Raises `LoadsFault` when that model cannot be
+    built, or when a servo's joint stands still while its driver moves the linkage (`stall_at`)."""
+    for servo in spec.loads.servos:
+        if servo.at is None:
+            continue
+        at = stall_at(result, servo.driver, servo.at)
+        if at is not None:
+            raise LoadsFault(loads_where(spec, f'servo "{servo.driver}"'), "at",
+                             f"{describe(Target('joint', servo.at), spec)} stands still at master {at:.4g}° while "
+                             f"driver {servo.driver!r} moves the linkage (a dead point seen from {servo.at}): "
+                             "a motor there would need an unbounded torque")
     swapped = motor_spec(spec)
     try:
         mechanism = build_linkage(project, swapped).mechanism
