@@ -12,6 +12,15 @@ garbage).  The next System borrows it with its pages already mapped.
 A workspace has one owner at a time (borrowing pops it from the pool), so
 systems in different threads never share one.  What a buffer holds is
 valid until its owner asks for the same name again.
+
+The temporaries of a solve that are not in a workspace (a few hundred KiB
+each at 3,600 instants) are reused through the C allocator.  glibc's malloc
+serves blocks above its mmap threshold (128 KiB at start) as fresh mappings
+that fault page by page, but raises the threshold to the size of any such
+block that is freed (mallopt(3), "dynamic mmap threshold").  Pooled
+workspaces are never freed, so the first new workspace frees one block of
+ALLOCATOR_WARM_BYTES once, and the temporaries then come from the heap and
+are reused (elsewhere this is one harmless allocation).
 """
 
 from __future__ import annotations
@@ -20,6 +29,7 @@ import numpy as np
 
 POOL_SIZE = 4  # idle workspaces kept: one per system alive at once in typical use (a result and its successor)
 MAX_POOLED_BYTES = 64 * 2**20  # a workspace grown beyond this (huge instant counts) is not kept
+ALLOCATOR_WARM_BYTES = 4 * 2**20  # above any one temporary of a six-bar at 3,600 instants (~0.8 MB); no page is touched
 
 
 VIEWS_KEPT = 256  # shaped views remembered per workspace (a handful per instant count in use)
@@ -60,6 +70,16 @@ class Workspace:
 
 
 _pool: list[Workspace] = []
+_allocator_warm = False
+
+
+def _warm_allocator() -> None:
+    """Free one large block, once, so that malloc serves the solve's temporaries from its heap (see above)."""
+    global _allocator_warm
+    if not _allocator_warm:
+        _allocator_warm = True
+        block = np.empty(ALLOCATOR_WARM_BYTES // 8)
+        del block
 
 
 def borrow() -> Workspace:
@@ -67,6 +87,7 @@ def borrow() -> Workspace:
     try:
         return _pool.pop()
     except IndexError:
+        _warm_allocator()
         return Workspace()
 
 
