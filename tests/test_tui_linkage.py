@@ -510,11 +510,20 @@ async def test_an_under_driven_linkage_names_its_free_motion():
 
 
 async def test_a_linkage_that_does_not_assemble_says_so():
-    app = Workbench(loads_project(WOBBLER.replace("O4 = [100.0, 0.0]", "O4 = [400.0, 0.0]")))
+    far = 400.0  # the ground pivots 400 mm apart; crank, coupler and rocker reach 165 mm end to end
+    app = Workbench(loads_project(WOBBLER.replace("O4 = [100.0, 0.0]", f"O4 = [{far}, 0.0]")))
     async with app.run_test(size=SIZE) as pilot:
         await open_view(pilot)
         assert "✗ NOT ASSEMBLED at master 0.00°" in bar(app)
-        assert "drawn as placed in the file" in report_text(app)
+        text = report_text(app)
+        assert "drawn as near as it comes to assembling at master 0°" in text
+        line = next(x for x in app.query_one(LinkageReport).lines if x.startswith("joints that stay open:"))
+        gaps = [float(g) for g in re.findall(r"\(([\d.]+) mm apart\)", line)]
+        # the nearest configuration lays the chain straight along O2–O4: its joints' gaps add up to the
+        # shortfall of the chain (geometry of a straight line)
+        assert sum(gaps) == pytest.approx(far - (A_NG + B_NG + C_NG), rel=SHOWN_REL)
+        assert "B!" in line and app.query_one(LinkageDrawing).render().plain.count(INVOLVED_MARK) >= 2
+        assert not app.query_one("#lk-plots").display  # nothing to plot
 
 
 async def test_no_linkage_shows_a_valid_example():

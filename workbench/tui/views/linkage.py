@@ -47,7 +47,7 @@ PLOT_ROWS = (7, 13)  # least and most rows for the plots; a third of the view be
 READOUT_WIDTH = 52  # columns the readout needs ("acceleration -12,345 deg/s² · jerk -1.234e+06 deg/s³")
 SIDE_FRAME = 2  # the side's left padding and its scroll bar
 WIDE_DRAWING = 40  # the drawing gives way to the bars only while it keeps this many columns
-MIN_DRAWING = 20  # columns
+MIN_DRAWING = 18  # columns (z gives the drawing the whole view)
 ABOVE_GAIN = 1.2  # the drawing goes above only when that draws it this much larger
 MIN_DRAWING_ROWS = 6  # rows the drawing keeps above the readout and the table
 CACHE = 8  # studies kept (by what they depend on): stepping through linkages and undo cost no solve
@@ -265,12 +265,18 @@ class LinkageView(WorkbenchView):
         has = bool(self.specs)
         for name in ("#lk-bar", "#lk-top"):
             self.query_one(name).display = has
-        self.query_one("#lk-plots").display = has and not self.zoomed
+        self.query_one("#lk-plots").display = self._plots_shown()
         self.query_one("#lk-empty").display = not has
         if not has:
             self.query_one("#lk-empty-text", Static).update(no_linkage_text(self.project, self.size.width))
         self.call_after_refresh(self._size_parts)
         self.refresh_bindings()
+
+    def _plots_shown(self) -> bool:
+        """Plots while there is something to plot (or it is being computed), and not zoomed."""
+        entry = self.entry
+        something = entry is None or (entry.runs and bool(entry.traces))
+        return bool(self.specs) and not self.zoomed and something
 
     def on_resize(self) -> None:
         self._size_parts()
@@ -290,8 +296,8 @@ class LinkageView(WorkbenchView):
             self.query_one("#lk-side").styles.height = "auto"
             self.query_one(LinkageDrawing).styles.width = "100%"
             return
-        plots = max(PLOT_ROWS[0], min(PLOT_ROWS[1], h // 3))
-        self.query_one("#lk-plots").styles.height = plots
+        plots = max(PLOT_ROWS[0], min(PLOT_ROWS[1], h // 3)) if self._plots_shown() else 0
+        self.query_one("#lk-plots").styles.height = max(plots, 1)
         top = max(1, h - 1 - plots)
         outputs = [o.name for o in self.spec.outputs] if self.spec is not None else []
         outputs = outputs or [None]  # the widest table of any output: the drawing keeps its size as `o` steps
@@ -323,6 +329,7 @@ class LinkageView(WorkbenchView):
 
     def _refresh_all(self) -> None:
         entry = self.entry
+        self.query_one("#lk-plots").display = self._plots_shown()
         self._refresh_bar()
         self.query_one(LinkageReport).show(entry, self.output_name)
         for shown in self.query(".lk-legend").results(Static):
@@ -442,7 +449,7 @@ class LinkageView(WorkbenchView):
     def action_zoom(self) -> None:
         self.zoomed = not self.zoomed
         self.set_class(self.zoomed, "-zoom")
-        self.query_one("#lk-plots").display = bool(self.specs) and not self.zoomed
+        self.query_one("#lk-plots").display = self._plots_shown()
         self._size_parts()
         self.query_one(LinkageDrawing).refresh()
         if not self.zoomed:

@@ -7,7 +7,8 @@ per s^k), the body coordinates at every solved instant, the travel of every
 slider, the cuts where a driver's axis changes segment, and the extent of
 the drawing over the whole cycle (so the scale holds while the angle
 steps).  When nothing solved it keeps a still pose instead: the linkage
-assembled at master 0° (not driven) or as the file places it.
+assembled at master 0° (not driven), as near as it comes to assembling
+(with the joints that stay open and their gaps), or as the file places it.
 
 `pose_at(entry, angle)` gives the linkage at any solved master angle (cubic
 Hermite between solved instants, with their rates: exact to far below a
@@ -22,7 +23,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from solver.kinematics import GROUND, NOT_DRIVEN, SOLVED, mobility
+from solver.kinematics import GROUND, NOT_ASSEMBLED, NOT_DRIVEN, SOLVED, mobility
+from solver.kinematics.base import LENGTH
+from solver.kinematics.newton import assemble
+from solver.kinematics.system import System
 
 from ...linkagefile import LinkageSpec, describe, split_ref, target_unit
 from ...linkagemodel import LinkageFault, build_linkage
@@ -37,6 +41,9 @@ STOP_GAP = 1e-9  # deg: a dead point this close after the last grid instant need
 MIN_SIZE = 1.0  # mm: the least extent of a drawing (a linkage of one point still gets a frame)
 
 PLACED = "as placed in the file: it does not assemble there"
+NEAREST = "as near as it comes to assembling at master 0°: the joints marked ! stay open"
+OPEN = 1e-6  # a joint whose scaled residual (lengths in units of the linkage's size, angles in rad) is
+#              larger than this stays open in the nearest configuration
 ASSEMBLED = "assembled at master 0°; not driven, so it does not move"
 
 
@@ -143,6 +150,7 @@ class LinkageEntry:
     cuts: tuple[float, ...] = ()
     speed: float = 0.0
     drivers: dict = field(default_factory=dict)
+    gaps: tuple = ()  # (joint or driver, gap in mm or None) that stay open where it does not assemble
 
     @property
     def name(self) -> str:
@@ -170,6 +178,11 @@ class LinkageEntry:
     def dead_joints(self) -> tuple[str, ...]:
         dead = self.study.solution.result.dead_point if self.study is not None else None
         return tuple(dead.joints) if dead is not None else ()
+
+    @property
+    def involved(self) -> tuple[str, ...]:
+        """The joints to point out in the drawing: those of a dead point, or those that stay open."""
+        return self.dead_joints or tuple(name for name, _ in self.gaps)
 
     def output_study(self, name: str):
         if self.study is None:
@@ -293,16 +306,42 @@ def _with_stop(project, spec: LinkageSpec, study, theta, q, dq, traces):
     return theta, q, dq, longer
 
 
-def _still(project, spec: LinkageSpec, study: LinkageStudy | None) -> tuple[Frames, str]:
-    """The pose to draw when no instant solved, and what it is in words."""
+def open_joints(mechanism) -> tuple[np.ndarray | None, tuple[tuple[str, float | None], ...]]:
+    """The configuration nearest to assembled at master 0 (least squares from the file's placing) and
+    the joints and drivers that stay open there, widest gap first: (name, gap in mm, or None for a
+    gap that is an angle)."""
+    system = System(mechanism)
+    q, _ = assemble(system, system.initial_guess(), 0.0)
+    res = system.residual(q[:, None], system.drive(np.array([0.0])))[:, 0]
+    scaled = res * system.row_scale
+    gaps: dict[str, list] = {}
+    for name, unit, r, sr in zip(system.row_names, system.row_units, res, scaled):
+        entry = gaps.setdefault(name, [0.0, 0.0, True])
+        entry[0] += sr * sr
+        entry[1] += (r * MM) ** 2 if unit == LENGTH else 0.0
+        entry[2] = entry[2] and unit == LENGTH
+    found = sorted(((n, math.sqrt(g[0]), math.sqrt(g[1]) if g[2] else None) for n, g in gaps.items()),
+                   key=lambda item: -item[1])
+    return q, tuple((n, gap) for n, size, gap in found if size > OPEN)
+
+
+def _still(project, spec: LinkageSpec, study: LinkageStudy | None):
+    """The pose to draw when no instant solved, what it is in words, and the joints that stay open."""
+    if study is not None and study.status == NOT_ASSEMBLED:
+        try:
+            q, gaps = open_joints(study.solution.built.mechanism)
+        except (ArithmeticError, ValueError, np.linalg.LinAlgError):
+            q, gaps = None, ()
+        if q is not None and gaps:
+            return _frames_from_q(q, study.solution.built.mechanism.moving), NEAREST, gaps
     if study is not None and study.status == NOT_DRIVEN:
         try:
             _, q = mobility(study.solution.built.mechanism)
         except (ArithmeticError, ValueError, np.linalg.LinAlgError):
             q = None
         if q is not None:
-            return _frames_from_q(q, study.solution.built.mechanism.moving), ASSEMBLED
-    return _placed(spec), PLACED
+            return _frames_from_q(q, study.solution.built.mechanism.moving), ASSEMBLED, ()
+    return _placed(spec), PLACED, ()
 
 
 def cuts_of(project, spec: LinkageSpec) -> tuple[float, ...]:
@@ -324,6 +363,7 @@ def study_entry(project, spec: LinkageSpec) -> LinkageEntry:
         problem = f"the linkage could not be studied ({exc})"
     margin = GUIDE_MARGIN * size_of(spec)
     bodies = tuple(b.name for b in spec.bodies)
+    gaps = ()
     if study is not None and study.solution.result.theta.size:
         result = study.solution.result
         bodies = tuple(study.solution.built.mechanism.moving)
@@ -331,7 +371,7 @@ def study_entry(project, spec: LinkageSpec) -> LinkageEntry:
         theta, q, dq = np.degrees(result.theta), result.q, result.dq
         still, words = None, ""
     else:
-        frames, words = _still(project, spec, study)
+        frames, words, gaps = _still(project, spec, study)
         still = frames
         n = 3 * len(bodies)
         theta, q, dq = np.zeros(0), np.zeros((0, n)), np.zeros((0, n))
@@ -347,7 +387,7 @@ def study_entry(project, spec: LinkageSpec) -> LinkageEntry:
     theta, q, dq, traces = _with_stop(project, spec, study, theta, q, dq, traces)
     return LinkageEntry(
         spec=spec, study=study, problem=problem, theta=theta, q=q, dq=dq, bodies=bodies,
-        traces=traces, still=still, still_words=words, travel=travel,
+        traces=traces, still=still, still_words=words, travel=travel, gaps=gaps,
         bounds=_bounds(spec, frames, travel, margin), cuts=cuts_of(project, spec), speed=project.speed,
         drivers=drivers,
     )

@@ -42,6 +42,7 @@ PATH = ("white", 3.0)
 JOINT_STYLE = "bold bright_white"
 INVOLVED_STYLE = "bold red"
 LABEL_STYLE = "bright_black"
+GAP_SPACING = 2.0  # the gap of a joint left open is dotted, one dot every 2
 SYMBOLS = (GROUND_PIVOT, PIN, SLIDER, WELD, OUTPUT_POINT)
 
 
@@ -215,15 +216,20 @@ class LinkageDrawing(Widget, can_focus=True):
             raster.line(path, *PATH)
         for k, b in enumerate(entry.spec.bodies):
             raster.line(body_outline(entry, pose, b.name), BODY_STYLES[k % len(BODY_STYLES)])
-        involved = set(entry.dead_joints)
+        involved = set(entry.involved)
         self.joint_cells = {}
         for ref in self._paths:
             raster.mark(complex(pose.points[ref]), OUTPUT_POINT, JOINT_STYLE)
         joints = sorted(entry.spec.joints, key=lambda j: j.kind == "slider")  # sliders on top of their pins
         for j in joints:
-            cell = raster.mark(joint_place(entry, pose, j), joint_symbol(j), INVOLVED_STYLE if j.name in involved else JOINT_STYLE)
+            style = INVOLVED_STYLE if j.name in involved else JOINT_STYLE
+            cell = raster.mark(joint_place(entry, pose, j), joint_symbol(j), style)
             if cell is not None:
                 self.joint_cells[j.name] = cell
+            if j.name in involved and entry.gaps:  # a joint left open: both its points, and the gap
+                ends = [complex(pose.points[j.first]), complex(pose.points[j.second])]
+                raster.line(np.array(ends), INVOLVED_STYLE, GAP_SPACING)
+                raster.mark(ends[1], joint_symbol(j), style)
         # names: the joints a dead point involves first (always shown), then the rest where there is room
         for j in sorted(joints, key=lambda j: j.name not in involved):
             cell = self.joint_cells.get(j.name)
@@ -256,6 +262,8 @@ def legend(entry: LinkageEntry | None) -> Text:
         items += [(OUTPUT_POINT, "output point", JOINT_STYLE), ("⠁ ⠁", "its path", PATH[0])]
     if entry.dead_joints:
         items.append((f"A{INVOLVED_MARK}", "joint in the dead point", INVOLVED_STYLE))
+    elif entry.gaps:
+        items.append((f"A{INVOLVED_MARK}", "joint left open", INVOLVED_STYLE))
     for i, (sample, word, style) in enumerate(items):
         if i:
             out.append("  ")

@@ -100,6 +100,10 @@ def trouble_lines(entry: LinkageEntry) -> list[tuple[str, str]]:
         out.append((f"drawn {entry.still_words}", "dim"))
     else:
         out.append((result.message, ""))
+        if entry.gaps:
+            gaps = ", ".join(f"{name}{INVOLVED_MARK}" + (f" ({num(gap)} mm apart)" if gap is not None else "")
+                             for name, gap in entry.gaps)
+            out.append((f"joints that stay open: {gaps}", OVER_STYLE))
         out.append((f"drawn {entry.still_words}", "dim"))
     return out
 
@@ -215,7 +219,7 @@ def table_width(entry: LinkageEntry | None, output: str | None, bars: bool = Fal
         columns.append(max(len(title), *(len(r[key]) for r in rows.values())))
     if bars:
         columns.append(BAR_COLUMN)
-    return sum(columns) + len(columns)  # each column keeps one blank column on its right
+    return sum(columns) + len(columns) - 1  # one blank column between columns
 
 
 def side_rows(entry: LinkageEntry | None, output: str | None) -> int:
@@ -283,7 +287,8 @@ class LinkageReport(Static):
     def _output_parts(self, entry: LinkageEntry, output: str) -> list:
         wide = self._wide(entry, output)
         self.rows = peak_rows(entry, output)
-        table = Table(box=None, padding=COLUMN_GAP, show_edge=False, expand=False, header_style="bold")
+        table = Table(box=None, padding=COLUMN_GAP, show_edge=False, pad_edge=False, expand=False,
+                      header_style="bold")
         for name, justify in (("peaks", "left"), ("value", "right"), ("at", "right"), ("limit", "right")):
             table.add_column(name, justify=justify, no_wrap=True)
         if wide:
