@@ -45,6 +45,7 @@ from workbench.tui.views.linkage import LinkageView
 from workbench.tui.widgets.linkage_data import hermite
 from workbench.tui.widgets.linkage_drawing import INVOLVED_MARK, LinkageDrawing, Raster
 from workbench.tui.widgets.linkage_empty import EXAMPLE, example_text
+from workbench.tui.widgets.linkage_layout import arrange
 from workbench.tui.widgets.linkage_plots import LinkagePlot
 from workbench.tui.widgets.linkage_report import LinkageReport
 from workbench.tui.widgets.segment_table import SegmentTable
@@ -264,6 +265,17 @@ async def test_equal_scale_across_and_down():
     raster = Raster(40, 20, (-50.0, 50.0, -50.0, 50.0))
     x, y = raster.to_dots(50.0 * np.exp(1j * np.linspace(0, 2 * math.pi, 721)))
     assert x.max() - x.min() == pytest.approx(y.max() - y.min(), abs=1e-9)
+
+
+def test_arrangement_puts_a_long_flat_linkage_above_the_figures():
+    flat, square = (380.0, 125.0), (180.0, 190.0)  # slider-crank and crank-rocker drawings, mm
+    wide = arrange(120, 36, flat, table=55, wide_table=70, figure_rows=10, plots=True)
+    assert wide.above and wide.side_rows == 10 and wide.drawing_width is None
+    tall = arrange(120, 36, square, table=55, wide_table=70, figure_rows=10, plots=True)
+    assert not tall.above and tall.drawing_width + 70 + 2 <= 120  # beside, with room for the bars
+    small = arrange(80, 20, flat, table=55, wide_table=70, figure_rows=10, plots=True)
+    assert not small.above and small.drawing_width == 80 - 55 - 2 and small.plot_rows == 7
+    assert arrange(80, 20, flat, table=55, wide_table=70, figure_rows=10, plots=False).plot_rows == 0
 
 
 def test_hermite_is_exact_on_a_cubic():

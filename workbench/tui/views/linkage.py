@@ -10,14 +10,12 @@ not assemble or is not driven is drawn as it stands, with the reason.
 
 Keys: `,` `.` pick the linkage, `o` `O` the output, `p` the rate plotted
 beside the position, `←` `→` step the master angle (shift: 1°), `home` back
-to 0°, `w` to the worst spots in turn.
+to 0°, `w` to the worst spots in turn, `z` the drawing on the whole view,
+`↑` `↓` scroll the figures when they do not fit.
 """
 
 from __future__ import annotations
 
-import math
-
-from rich.text import Text
 from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -28,30 +26,25 @@ from textual.worker import get_current_worker
 
 from ...linkagefile import LinkageSpec, linkage_specs
 from ...projectfile import Project
-from ..format import OVER_STYLE, degrees
+from ..format import degrees
 from ..messages import Status
 from ..widgets.cam_verdicts import show_text
-from ..widgets.linkage_data import FULL_TURN, LinkageEntry, driver_value, same_inputs, spots, study_entry
-from ..widgets.linkage_drawing import CELL_ASPECT, LinkageDrawing, legend
+from ..widgets.linkage_data import FULL_TURN, LinkageEntry, same_inputs, spots, study_entry
+from ..widgets.linkage_drawing import LinkageDrawing, legend
+from ..widgets.linkage_layout import arrange
 from ..widgets.linkage_empty import no_linkage_text
 from ..widgets.linkage_plots import LinkagePlot, output_plot
-from ..widgets.linkage_report import LinkageReport, num, side_rows, status_words, stop_text, table_width
+from ..widgets.linkage_readout import readout_text
+from ..widgets.linkage_report import LinkageReport, bar_text, side_rows, status_words, stop_text, table_width
 from . import register_view
 from .base import WorkbenchView
 
-LINKAGE_ACTIONS = {"step", "go", "worst", "cycle_linkage", "cycle_output", "next_rate", "scroll_side", "zoom"}  # keys that need a linkage
+LINKAGE_ACTIONS = {"step", "go", "worst", "cycle_linkage", "cycle_output", "next_rate", "scroll_side",
+                   "zoom"}  # keys that need a linkage
 COARSE_STEP = 5.0  # deg per ← →
 FINE_STEP = 1.0  # deg per shift+← →
 RATES = ("velocity", "acceleration", "jerk")
-PLOT_ROWS = (7, 13)  # least and most rows for the plots; a third of the view between them
-READOUT_WIDTH = 52  # columns the readout needs ("acceleration -12,345 deg/s² · jerk -1.234e+06 deg/s³")
-SIDE_FRAME = 2  # the side's left padding and its scroll bar
-WIDE_DRAWING = 40  # the drawing gives way to the bars only while it keeps this many columns
-MIN_DRAWING = 18  # columns (z gives the drawing the whole view)
-ABOVE_GAIN = 1.2  # the drawing goes above only when that draws it this much larger
-MIN_DRAWING_ROWS = 6  # rows the drawing keeps above the readout and the table
 CACHE = 8  # studies kept (by what they depend on): stepping through linkages and undo cost no solve
-SPECK = 1e-6  # a value below this share of its quantity's largest over the cycle is shown as 0 (rounding)
 
 
 class LinkageBar(Static):
@@ -210,8 +203,8 @@ class LinkageView(WorkbenchView):
             self._take(cached)
             return
         self.fresh = False
-        if self.entry is not None and self.entry.name != spec.name:
-            self.entry = None  # another linkage's drawing would mislead
+        if self.entry is not None and self.entry.spec != spec:
+            self.entry = None  # another linkage's drawing (or outputs) would mislead; an axis edit keeps it
         self._refresh_all()
         self.study(self.project, spec.name, inputs)
 
@@ -285,45 +278,30 @@ class LinkageView(WorkbenchView):
             self.query_one("#lk-empty-text", Static).update(no_linkage_text(self.project, self.size.width))
 
     def _size_parts(self) -> None:
-        """Plots a third of the height (within `PLOT_ROWS`); the drawing beside the readout and the
-        table, or above them (side by side) when that draws the linkage larger — a long, flat
-        linkage such as a slider-crank on a wide screen."""
+        """Lay the parts out for the view's size (`linkage_layout.arrange`); zoomed, the drawing
+        takes all but the readout."""
         w, h = self.size
         if h == 0:
             return
+        top, side, drawing = self.query_one("#lk-top"), self.query_one("#lk-side"), self.query_one(LinkageDrawing)
         if self.zoomed:
-            self.query_one("#lk-top").set_class(False, "-above")
-            self.query_one("#lk-side").styles.height = "auto"
-            self.query_one(LinkageDrawing).styles.width = "100%"
-            return
-        plots = max(PLOT_ROWS[0], min(PLOT_ROWS[1], h // 3)) if self._plots_shown() else 0
-        self.query_one("#lk-plots").styles.height = max(plots, 1)
-        top = max(1, h - 1 - plots)
-        outputs = [o.name for o in self.spec.outputs] if self.spec is not None else []
-        outputs = outputs or [None]  # the widest table of any output: the drawing keeps its size as `o` steps
-        side = max(READOUT_WIDTH, *(table_width(self.entry, o) for o in outputs)) + SIDE_FRAME
-        wide_side = max(table_width(self.entry, o, bars=True) for o in outputs) + SIDE_FRAME
-        beside = max(MIN_DRAWING, w - side)
-        sx, sy = 1.0, 1.0
-        if self.entry is not None:
-            x0, x1, y0, y1 = self.entry.bounds
-            sx, sy = max(x1 - x0, 1e-9), max(y1 - y0, 1e-9)
-        below = max(side_rows(self.entry, o) for o in outputs)
-        scale_beside = min(beside / sx, top * CELL_ASPECT / sy)
-        scale_above = min(w / sx, (top - below) * CELL_ASPECT / sy) if w >= side + READOUT_WIDTH else 0.0
-        above = top - below >= MIN_DRAWING_ROWS and scale_above > ABOVE_GAIN * scale_beside
-        self.query_one("#lk-top").set_class(above, "-above")
-        drawing = self.query_one(LinkageDrawing)
-        if above:
-            self.query_one("#lk-side").styles.height = below
+            top.set_class(False, "-above")
+            side.styles.height = "auto"
             drawing.styles.width = "100%"
             return
-        self.query_one("#lk-side").styles.height = "1fr"
-        needed = int(math.ceil(top * CELL_ASPECT * sx / sy)) + 1
-        width = min(beside, needed)
-        if w - width < wide_side and w - wide_side >= WIDE_DRAWING:
-            width = w - wide_side  # room for the share-of-limit bars
-        drawing.styles.width = max(MIN_DRAWING, width)
+        outputs = [o.name for o in self.spec.outputs] if self.spec is not None else []
+        outputs = outputs or [None]  # the widest table of any output: the drawing keeps its size as `o` steps
+        extent = (1.0, 1.0)
+        if self.entry is not None:
+            x0, x1, y0, y1 = self.entry.bounds
+            extent = (x1 - x0, y1 - y0)
+        plan = arrange(w, h, extent, max(table_width(self.entry, o) for o in outputs),
+                       max(table_width(self.entry, o, bars=True) for o in outputs),
+                       max(side_rows(self.entry, o) for o in outputs), self._plots_shown())
+        self.query_one("#lk-plots").styles.height = max(plan.plot_rows, 1)
+        top.set_class(plan.above, "-above")
+        side.styles.height = plan.side_rows if plan.above else "1fr"
+        drawing.styles.width = "100%" if plan.above else plan.drawing_width
 
     # --- painting -------------------------------------------------------------
 
@@ -343,69 +321,13 @@ class LinkageView(WorkbenchView):
 
     def _refresh_angle(self) -> None:
         self.query_one(LinkageDrawing).show(self.entry, self.angle)
-        show_text(self.query_one("#lk-readout", Static), self._readout_text())
+        show_text(self.query_one("#lk-readout", Static), readout_text(self.entry, self.output_name, self.angle))
 
-    def _readout_text(self) -> Text:
-        entry = self.entry
-        if entry is None:
-            return Text("")
-        if not entry.runs:
-            return Text("✗ the linkage does not move (see below)", style=OVER_STYLE)
-        text = Text()
-        stopped = not entry.solved and self.angle >= entry.last
-        text.append(f"at master {stop_text(self.angle) if stopped else degrees(self.angle)}", style="bold")
-        trace = entry.traces.get(self.output_name) if self.output_name else None
-        if trace is not None:
-            v = trace.at(self.angle)
-            unit = trace.unit
-            shown = {q: num(x if abs(x) > SPECK * trace.largest(q) else 0.0) for q, x in v.items()}
-            text.append(f": {self.output_name} {shown['position']} {unit}")
-            if not stopped:
-                speed = shown["velocity"]
-                moving = "↑ " if speed != "0" and v["velocity"] > 0 else "↓ " if speed != "0" else ""
-                if speed == "0" and shown["acceleration"] == "0":
-                    text.append(" at rest\n")
-                else:
-                    text.append(f" {moving}{speed} {unit}/s\n")
-                text.append(f"acceleration {shown['acceleration']} {unit}/s² · jerk {shown['jerk']} {unit}/s³")
-        if stopped:  # the dead point itself: the rates grow without bound there
-            text.append("\n✗ it stops here: a dead point, its rates grow without bound", style=OVER_STYLE)
-        drivers = []
-        for d in entry.spec.drivers:
-            value = driver_value(entry, d.name, self.angle)
-            if value is not None:
-                shown = f"{num(value[0])}°" if value[1] == "deg" else f"{num(value[0])} mm"
-                drivers.append(f"{d.name} at {shown}" + (f" (axis {d.axis})" if d.axis else ""))
-        if drivers:
-            text.append("\ndriver " + " · ".join(drivers), style="dim")
-        return text
 
     def _refresh_bar(self) -> None:
-        bar = self.query_one(LinkageBar)
-        specs = self.specs
-        if not specs or self.spec is None:
-            bar.update("")
-            return
-        names = [s.name for s in specs]
-        spec = self.spec
-        text = Text(no_wrap=True, overflow="ellipsis")
-        text.append("linkage ", style="dim")
-        text.append(f"◂ {spec.name} ▸", style="bold")
-        text.append(f" {names.index(spec.name) + 1}/{len(names)}", style="dim")
-        text.append(" (, .)" if len(names) > 1 else "", style="dim")
-        text.append("  ")
-        words, style = status_words(self.entry if self.fresh else None)
-        text.append(words, style=style)
-        pieces = [f"{len(spec.bodies)} bodies", f"{len(spec.joints)} joints",
-                  f"machine {num(self.project.speed)} cycles/min"]
-        room = self.size.width - 2 - len(text.plain)
-        for piece in pieces:  # as many as fit whole
-            if len(piece) + 3 > room:
-                break
-            text.append(" · ", style="dim")
-            text.append(piece, style="dim")
-            room -= len(piece) + 3
-        bar.update(text, layout=False)
+        entry = self.entry if self.fresh else None
+        text = bar_text([s.name for s in self.specs], self.spec, entry, self.project, self.size.width - 2)
+        self.query_one(LinkageBar).update(text, layout=False)
 
     def focus_first(self) -> None:
         if self.specs:

@@ -23,48 +23,37 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from solver.kinematics import GROUND, NOT_ASSEMBLED, NOT_DRIVEN, SOLVED, mobility
-from solver.kinematics.base import LENGTH
-from solver.kinematics.newton import assemble
-from solver.kinematics.system import System
+from solver.kinematics import NOT_ASSEMBLED, NOT_DRIVEN, SOLVED, mobility
 
-from ...linkagefile import LinkageSpec, describe, split_ref, target_unit
-from ...linkagemodel import LinkageFault, build_linkage
+from ...linkagefile import LinkageSpec, describe, target_unit
+from ...linkagemodel import LinkageFault
 from ...linkagesolve import solve_linkage, stretches
 from ...linkagestudy import LinkageStudy, study_linkage
+from .linkage_geometry import (
+    GUIDE_MARGIN,
+    MM,
+    Frames,
+    all_points,
+    drawing_bounds,
+    frames_from_q,
+    guide_line,
+    hermite,
+    open_joints,
+    placed,
+    size_of,
+    slider_travel,
+)
 
-MM = 1e3  # mm per m
 FULL_TURN = 360.0  # master degrees per cycle
 QUANTITIES = ("position", "velocity", "acceleration", "jerk")
-GUIDE_MARGIN = 0.08  # a slider's guide is drawn this share of the linkage's size past the travel at each end
 STOP_GAP = 1e-9  # deg: a dead point this close after the last grid instant needs no instant of its own
-MIN_SIZE = 1.0  # mm: the least extent of a drawing (a linkage of one point still gets a frame)
 
 PLACED = "as placed in the file: it does not assemble there"
 NEAREST = "as near as it comes to assembling at master 0°: the joints marked ! stay open"
-OPEN = 1e-6  # a joint whose scaled residual (lengths in units of the linkage's size, angles in rad) is
-#              larger than this stays open in the nearest configuration
 ASSEMBLED = "assembled at master 0°; not driven, so it does not move"
 
 
 # --- outputs --------------------------------------------------------------------------------
-
-
-def hermite(t: np.ndarray, y: np.ndarray, dy: np.ndarray, at: float) -> float:
-    """y at `at` from samples y(t) and their slopes dy (per unit of t): cubic Hermite between the
-    neighbouring samples; past the ends, a first-order step from the nearest one."""
-    n = t.size
-    k = int(np.searchsorted(t, at, side="right")) - 1
-    if k < 0:
-        return float(y[0] + dy[0] * (at - t[0]))
-    if k >= n - 1:
-        return float(y[-1] + dy[-1] * (at - t[-1]))
-    h = t[k + 1] - t[k]
-    if h <= 0.0:
-        return float(y[k + 1])
-    s = (at - t[k]) / h
-    h00, h10, h01, h11 = 2 * s**3 - 3 * s**2 + 1, s**3 - 2 * s**2 + s, -2 * s**3 + 3 * s**2, s**3 - s**2
-    return float(h00 * y[k] + h10 * h * dy[k] + h01 * y[k + 1] + h11 * h * dy[k + 1])
 
 
 @dataclass(frozen=True)
@@ -103,23 +92,6 @@ class Trace:
 
 
 # --- the entry ----------------------------------------------------------------------------------
-
-
-@dataclass(frozen=True)
-class Frames:
-    """Body frames of a linkage: per body, origin (complex, mm) and angle (rad); arrays over
-    instants (N,) or single values.  The ground is at 0 with angle 0."""
-
-    origin: dict
-    angle: dict
-
-    def point(self, spec: LinkageSpec, ref: str):
-        """Machine position (complex, mm) of "body.point"."""
-        body, name = split_ref(ref)
-        u, v = spec.points(body)[name]
-        if body == GROUND:
-            return complex(u, v)
-        return self.origin[body] + (u + 1j * v) * np.exp(1j * self.angle[body])
 
 
 @dataclass(frozen=True)
@@ -196,72 +168,6 @@ class LinkageEntry:
         return min(max(angle_deg, float(self.theta[0])), self.last)
 
 
-def _frames_from_q(q: np.ndarray, bodies) -> Frames:
-    """Frames from coordinates q (..., 3B) in m, rad: the last axis body by body (x, y, φ)."""
-    origin, angle = {}, {}
-    for k, b in enumerate(bodies):
-        origin[b] = (q[..., 3 * k] + 1j * q[..., 3 * k + 1]) * MM
-        angle[b] = q[..., 3 * k + 2]
-    return Frames(origin, angle)
-
-
-def _placed(spec: LinkageSpec) -> Frames:
-    """The bodies where the file places them (rough, at master 0)."""
-    return Frames({b.name: complex(b.place[0], b.place[1]) for b in spec.bodies},
-                  {b.name: math.radians(b.place[2]) for b in spec.bodies})
-
-
-def _slider_unit(spec: LinkageSpec, joint, frames: Frames):
-    """Unit vector (complex) of a slider's travel in the machine frame."""
-    body, _ = split_ref(joint.first)
-    ax, ay = joint.axis or (1.0, 0.0)
-    u = complex(ax, ay) / abs(complex(ax, ay))
-    return u if body == GROUND else u * np.exp(1j * frames.angle[body])
-
-
-def slider_travel(spec: LinkageSpec, joint, frames: Frames):
-    """Travel of a slider's sliding point from its guide point along the guide (mm)."""
-    d = frames.point(spec, joint.second) - frames.point(spec, joint.first)
-    u = _slider_unit(spec, joint, frames)
-    return (d * np.conj(u)).real
-
-
-def guide_line(spec: LinkageSpec, joint, frames: Frames, travel: tuple[float, float], margin: float):
-    """The guide of a slider as two points (complex, mm), `margin` past the travel at each end."""
-    g = frames.point(spec, joint.first)
-    u = _slider_unit(spec, joint, frames)
-    return np.array([g + (travel[0] - margin) * u, g + (travel[1] + margin) * u])
-
-
-def all_points(spec: LinkageSpec, frames: Frames) -> dict[str, object]:
-    """Every named point of every body and of the ground, "body.point" → complex mm (or arrays)."""
-    out = {f"{GROUND}.{p}": complex(x, y) for p, (x, y) in spec.ground}
-    for b in spec.bodies:
-        for p, _ in b.points:
-            out[f"{b.name}.{p}"] = frames.point(spec, f"{b.name}.{p}")
-    return out
-
-
-def size_of(spec: LinkageSpec) -> float:
-    """A characteristic size of the linkage (mm): the largest extent of its points as placed."""
-    pts = np.array([complex(v) for v in all_points(spec, _placed(spec)).values()])
-    if pts.size == 0:
-        return MIN_SIZE
-    extent = max(float(np.ptp(pts.real)), float(np.ptp(pts.imag)))
-    return max(extent, MIN_SIZE)
-
-
-def _bounds(spec: LinkageSpec, frames: Frames, travel: dict, margin: float) -> tuple[float, float, float, float]:
-    zs = [np.atleast_1d(np.asarray(z, dtype=complex)).ravel() for z in all_points(spec, frames).values()]
-    for j in spec.joints:
-        if j.kind == "slider":
-            zs.append(np.asarray(guide_line(spec, j, frames, travel[j.name], margin), dtype=complex).ravel())
-    z = np.concatenate(zs) if zs else np.zeros(1, dtype=complex)
-    x0, x1, y0, y1 = float(z.real.min()), float(z.real.max()), float(z.imag.min()), float(z.imag.max())
-    pad = max(x1 - x0, y1 - y0, MIN_SIZE) * 0.02
-    return x0 - pad, x1 + pad, y0 - pad, y1 + pad
-
-
 def _traces(study: LinkageStudy) -> dict[str, Trace]:
     solution = study.solution
     result = solution.result
@@ -306,25 +212,6 @@ def _with_stop(project, spec: LinkageSpec, study, theta, q, dq, traces):
     return theta, q, dq, longer
 
 
-def open_joints(mechanism) -> tuple[np.ndarray | None, tuple[tuple[str, float | None], ...]]:
-    """The configuration nearest to assembled at master 0 (least squares from the file's placing) and
-    the joints and drivers that stay open there, widest gap first: (name, gap in mm, or None for a
-    gap that is an angle)."""
-    system = System(mechanism)
-    q, _ = assemble(system, system.initial_guess(), 0.0)
-    res = system.residual(q[:, None], system.drive(np.array([0.0])))[:, 0]
-    scaled = res * system.row_scale
-    gaps: dict[str, list] = {}
-    for name, unit, r, sr in zip(system.row_names, system.row_units, res, scaled):
-        entry = gaps.setdefault(name, [0.0, 0.0, True])
-        entry[0] += sr * sr
-        entry[1] += (r * MM) ** 2 if unit == LENGTH else 0.0
-        entry[2] = entry[2] and unit == LENGTH
-    found = sorted(((n, math.sqrt(g[0]), math.sqrt(g[1]) if g[2] else None) for n, g in gaps.items()),
-                   key=lambda item: -item[1])
-    return q, tuple((n, gap) for n, size, gap in found if size > OPEN)
-
-
 def _still(project, spec: LinkageSpec, study: LinkageStudy | None):
     """The pose to draw when no instant solved, what it is in words, and the joints that stay open."""
     if study is not None and study.status == NOT_ASSEMBLED:
@@ -333,15 +220,15 @@ def _still(project, spec: LinkageSpec, study: LinkageStudy | None):
         except (ArithmeticError, ValueError, np.linalg.LinAlgError):
             q, gaps = None, ()
         if q is not None and gaps:
-            return _frames_from_q(q, study.solution.built.mechanism.moving), NEAREST, gaps
+            return frames_from_q(q, study.solution.built.mechanism.moving), NEAREST, gaps
     if study is not None and study.status == NOT_DRIVEN:
         try:
             _, q = mobility(study.solution.built.mechanism)
         except (ArithmeticError, ValueError, np.linalg.LinAlgError):
             q = None
         if q is not None:
-            return _frames_from_q(q, study.solution.built.mechanism.moving), ASSEMBLED, ()
-    return _placed(spec), PLACED, ()
+            return frames_from_q(q, study.solution.built.mechanism.moving), ASSEMBLED, ()
+    return placed(spec), PLACED, ()
 
 
 def cuts_of(project, spec: LinkageSpec) -> tuple[float, ...]:
@@ -367,7 +254,7 @@ def study_entry(project, spec: LinkageSpec) -> LinkageEntry:
     if study is not None and study.solution.result.theta.size:
         result = study.solution.result
         bodies = tuple(study.solution.built.mechanism.moving)
-        frames = _frames_from_q(result.q, bodies)
+        frames = frames_from_q(result.q, bodies)
         theta, q, dq = np.degrees(result.theta), result.q, result.dq
         still, words = None, ""
     else:
@@ -388,7 +275,7 @@ def study_entry(project, spec: LinkageSpec) -> LinkageEntry:
     return LinkageEntry(
         spec=spec, study=study, problem=problem, theta=theta, q=q, dq=dq, bodies=bodies,
         traces=traces, still=still, still_words=words, travel=travel, gaps=gaps,
-        bounds=_bounds(spec, frames, travel, margin), cuts=cuts_of(project, spec), speed=project.speed,
+        bounds=drawing_bounds(spec, frames, travel, margin), cuts=cuts_of(project, spec), speed=project.speed,
         drivers=drivers,
     )
 
@@ -427,7 +314,7 @@ def pose_at(entry: LinkageEntry, angle_deg: float) -> Pose:
         angle = entry.reachable(angle_deg)
         t, at = np.radians(entry.theta), math.radians(angle)
         q = np.array([hermite(t, entry.q[:, c], entry.dq[:, c], at) for c in range(entry.q.shape[1])])
-        frames = _frames_from_q(q, entry.bodies)
+        frames = frames_from_q(q, entry.bodies)
     else:
         angle, frames = 0.0, entry.still
     guides = {j.name: guide_line(spec, j, frames, entry.travel[j.name], margin)
@@ -440,7 +327,7 @@ def paths(entry: LinkageEntry) -> dict[str, np.ndarray]:
     out = {}
     if not entry.runs:
         return out
-    frames = _frames_from_q(entry.q, entry.bodies)
+    frames = frames_from_q(entry.q, entry.bodies)
     for o in entry.spec.outputs:
         if o.target.kind in ("x", "y") and o.target.of not in out:
             out[o.target.of] = np.asarray(frames.point(entry.spec, o.target.of), dtype=complex)

@@ -71,6 +71,31 @@ def status_words(entry: LinkageEntry | None) -> tuple[str, str]:
     return f"✗ {status}", OVER_STYLE
 
 
+def bar_text(names: list[str], spec, entry: LinkageEntry | None, project, width: int) -> Text:
+    """The view's top line: which linkage, its state in words, then what it is made of as far as it
+    fits in `width` ("linkage ◂ pusher ▸ 1/2 (, .)  ✓ solved, … · 3 bodies · 4 joints · machine …")."""
+    if spec is None:
+        return Text("")
+    text = Text(no_wrap=True, overflow="ellipsis")
+    text.append("linkage ", style="dim")
+    text.append(f"◂ {spec.name} ▸", style="bold")
+    text.append(f" {names.index(spec.name) + 1}/{len(names)}", style="dim")
+    text.append(" (, .)" if len(names) > 1 else "", style="dim")
+    text.append("  ")
+    words, style = status_words(entry)
+    text.append(words, style=style)
+    pieces = [f"{len(spec.bodies)} bodies", f"{len(spec.joints)} joints",
+              f"machine {num(project.speed)} cycles/min"]
+    room = width - len(text.plain)
+    for piece in pieces:  # as many as fit whole
+        if len(piece) + 3 > room:
+            break
+        text.append(" · ", style="dim")
+        text.append(piece, style="dim")
+        room -= len(piece) + 3
+    return text
+
+
 def trouble_lines(entry: LinkageEntry) -> list[tuple[str, str]]:
     """Why the linkage does not run through the cycle, in words: (line, style)."""
     if entry.study is None:
