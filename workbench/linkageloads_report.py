@@ -145,7 +145,8 @@ def gearing_words(s) -> str:
 
 def driver_block(spec, d) -> list:
     effort = "torque" if d.effort_unit == "N·m" else "force"
-    lines = [Text.assemble("  ", (f"driver {d.name}", "bold"), f"  {d.of}")]
+    where = ", where its servo works" if d.servo is not None and d.servo.at is not None else ""
+    lines = [Text.assemble("  ", (f"driver {d.name}", "bold"), f"  {d.of}{where}")]
     table = _table((("", "left"), ("value", "right"), ("at [deg]", "right")))
     table.add_row(Text(f"peak {effort} [{d.effort_unit}]"), fmt(d.peak.value), _deg(d.peak))
     table.add_row(Text(f"RMS {effort} [{d.effort_unit}]"), fmt(d.rms), "")
