@@ -196,7 +196,10 @@ def stall_at(result, driver: str, joint: str) -> float | None:
     coupling = CoordinateProbe(system, JointCoordinate(joint)).evaluate(result.q.T, u.T, zeros, zeros)[1]
     largest = float(np.max(np.abs(coupling)))
     sign = np.sign(np.where(np.abs(coupling) <= STALL * largest, 0.0, coupling))
-    bad = np.flatnonzero((sign == 0.0) | (sign != np.roll(sign, -1)))  # the last sample neighbours the first
+    turns = sign != np.roll(sign, -1)  # on a whole cycle the last sample neighbours the first
+    if not result.success:
+        turns[-1] = False
+    bad = np.flatnonzero((sign == 0.0) | turns)
     if largest == 0.0:
         return 0.0
     if bad.size == 0:
