@@ -9,6 +9,7 @@ j = 4π²·h/T³ (Cv = 2, Cj = 4π², handbook values from memory, Norton,
 
 from __future__ import annotations
 
+import io
 import math
 import shutil
 
@@ -361,8 +362,12 @@ async def test_axis_switch_and_timing_view(project_file):
         assert f"{s:.4g} mm" in text
         await pilot.press("3")
         await pilot.pause()
-        message = str(app.query_one("#linkage").query_one("#pending-text").content)
-        assert "not yet available" in message and "[[linkage]]" in message
+        from rich.console import Console
+
+        console = Console(width=100, record=True, file=io.StringIO())
+        console.print(app.query_one("#linkage").query_one("#lk-empty-text").content)
+        message = console.export_text()
+        assert "no [[linkage]] table" in message and "presets/slider-crank.toml" in message
 
 
 async def test_a_burst_of_edits_ends_with_the_numbers_of_the_last(project_file):
