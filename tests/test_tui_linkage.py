@@ -24,6 +24,7 @@ from __future__ import annotations
 import math
 import re
 import shutil
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -86,6 +87,16 @@ def rows(app) -> dict:
 
 def report_text(app) -> str:
     return "\n".join(app.query_one(LinkageReport).lines)
+
+
+def report_plain(app) -> str:
+    """The report as it reads on screen, table included."""
+    from rich.console import Console
+
+    report = app.query_one(LinkageReport)
+    console = Console(width=report.size.width, record=True, color_system=None)
+    console.print(report.content)
+    return console.export_text()
 
 
 def readout(app) -> str:
@@ -189,11 +200,12 @@ async def test_each_preset_shows_its_study(preset):
                 if q in checks:
                     assert got[q]["limit"] == f"{fmt(checks[q].limit)} {unit}{power}"
                     assert got[q]["used"] == pytest.approx(checks[q].used)
+                    assert f"{checks[q].used * 100:.0f} %" in report_plain(app)  # the share, in 100 columns
                     assert got[q]["verdict"] == ("✓ within" if checks[q].used <= 1.0 else "✗ OVER")
                 else:
                     assert got[q]["limit"] == "—" and got[q]["verdict"] == "· no limit"
             if want.max_speed is not None:
-                assert f"max speed within limits ✓ {fmt(want.max_speed)} cycles/min" in report_text(app)
+                assert f"✓ {fmt(want.max_speed)} cycles/min (now {fmt(project.speed)} cycles/min)" in report_text(app)
             rate = app.query_one("#lk-rate", LinkagePlot)
             assert rate.spec is not None and rate.points_drawn > 0
             if view(app).rate in checks:
@@ -536,6 +548,33 @@ async def test_a_linkage_that_does_not_assemble_says_so():
         assert sum(gaps) == pytest.approx(far - (A_NG + B_NG + C_NG), rel=SHOWN_REL)
         assert "B!" in line and app.query_one(LinkageDrawing).render().plain.count(INVOLVED_MARK) >= 2
         assert not app.query_one("#lk-plots").display  # nothing to plot
+
+
+async def test_a_study_that_fails_is_said_not_left_computing(monkeypatch):
+    import workbench.tui.views.linkage as linkage_view
+
+    def broken(project, spec):
+        raise RuntimeError("solver out of order")
+
+    monkeypatch.setattr(linkage_view, "study_entry", broken)
+    app = Workbench(load_project(preset_path("slider-crank")))
+    async with app.run_test(size=SIZE) as pilot:
+        await open_view(pilot)
+        assert "✗ COULD NOT BE STUDIED" in bar(app) and view(app).fresh
+        assert "RuntimeError: solver out of order" in report_text(app) and "solver out of order" in app.status_text
+        assert "drawn as placed in the file" in report_text(app)
+        assert set(app.query_one(LinkageDrawing).joint_cells) == {"O", "A", "B", "slide"}  # the file's drawing
+
+
+async def test_an_axis_a_driver_follows_gone_is_said_where():
+    project = load_project(preset_path("servo-carriage"))
+    spec = linkage_specs(project)[0]
+    gone = replace(spec, drivers=(replace(spec.drivers[0], axis="no-such-axis"),))
+    app = Workbench(replace(project, parts={**project.parts, "linkage": [gone]}))
+    async with app.run_test(size=SIZE) as pilot:
+        await open_view(pilot)
+        assert "✗ CANNOT BE BUILT" in bar(app)
+        assert 'driver "stroke": key "axis": no axis \'no-such-axis\'' in report_text(app)
 
 
 async def test_no_linkage_shows_a_valid_example():

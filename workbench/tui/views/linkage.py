@@ -22,20 +22,36 @@ from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.message import Message
 from textual.widgets import Static
-from textual.worker import get_current_worker
+from textual.worker import Worker, WorkerState, get_current_worker
 
 from ...linkagefile import LinkageSpec, linkage_specs
 from ...projectfile import Project
 from ..format import degrees
 from ..messages import Status
 from ..widgets.cam_verdicts import show_text
-from ..widgets.linkage_data import FULL_TURN, LinkageEntry, same_inputs, spots, study_entry
+from ..widgets.linkage_data import (
+    FULL_TURN,
+    STUDY_FAILED,
+    LinkageEntry,
+    entry_of,
+    same_inputs,
+    spots,
+    study_entry,
+)
 from ..widgets.linkage_drawing import LinkageDrawing, legend
 from ..widgets.linkage_layout import arrange
 from ..widgets.linkage_empty import no_linkage_text
 from ..widgets.linkage_plots import LinkagePlot, output_plot
 from ..widgets.linkage_readout import readout_text
-from ..widgets.linkage_report import LinkageReport, bar_text, side_rows, status_words, stop_text, table_width
+from ..widgets.linkage_report import (
+    BARS,
+    LinkageReport,
+    bar_text,
+    side_rows,
+    status_words,
+    stop_text,
+    table_width,
+)
 from . import register_view
 from .base import WorkbenchView
 
@@ -216,6 +232,15 @@ class LinkageView(WorkbenchView):
         if not get_current_worker().is_cancelled:
             self.post_message(self.Studied(project, name, inputs, entry))
 
+    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        """A study that fails unexpectedly is said on screen, not left "computing" for ever."""
+        worker = event.worker
+        if worker.group != "linkage-view" or event.state != WorkerState.ERROR or self.spec is None:
+            return
+        problem = f"{STUDY_FAILED} ({type(worker.error).__name__}: {worker.error})"
+        self.post_message(Status(problem, error=True))
+        self._take(entry_of(self.project, self.spec, None, problem))
+
     @on(Studied)
     def _studied(self, message: Studied) -> None:
         self._cache = [(k, e) for k, e in self._cache if k != message.inputs][-(CACHE - 1):]
@@ -296,7 +321,7 @@ class LinkageView(WorkbenchView):
             x0, x1, y0, y1 = self.entry.bounds
             extent = (x1 - x0, y1 - y0)
         plan = arrange(w, h, extent, max(table_width(self.entry, o) for o in outputs),
-                       max(table_width(self.entry, o, bars=True) for o in outputs),
+                       max(table_width(self.entry, o, BARS) for o in outputs),
                        max(side_rows(self.entry, o) for o in outputs), self._plots_shown())
         self.query_one("#lk-plots").styles.height = max(plan.plot_rows, 1)
         top.set_class(plan.above, "-above")

@@ -48,6 +48,7 @@ FULL_TURN = 360.0  # master degrees per cycle
 QUANTITIES = ("position", "velocity", "acceleration", "jerk")
 STOP_GAP = 1e-9  # deg: a dead point this close after the last grid instant needs no instant of its own
 
+STUDY_FAILED = "the linkage could not be studied"  # an unexpected failure, said on screen with its reason
 PLACED = "as placed in the file: it does not assemble there"
 NEAREST = "as near as it comes to assembling at master 0°: the joints marked ! stay open"
 ASSEMBLED = "assembled at master 0°; not driven, so it does not move"
@@ -247,7 +248,12 @@ def study_entry(project, spec: LinkageSpec) -> LinkageEntry:
     except LinkageFault as exc:
         problem = f'{exc.where}: key "{exc.key}": {exc.problem}' if exc.key else f"{exc.where}: {exc.problem}"
     except (ArithmeticError, ValueError, KeyError, np.linalg.LinAlgError) as exc:  # said on screen, never a traceback
-        problem = f"the linkage could not be studied ({exc})"
+        problem = f"{STUDY_FAILED} ({exc})"
+    return entry_of(project, spec, study, problem)
+
+
+def entry_of(project, spec: LinkageSpec, study: LinkageStudy | None, problem: str | None = None) -> LinkageEntry:
+    """The view's entry for a study of `spec` (None, with `problem`, when there is none: drawn as placed)."""
     margin = GUIDE_MARGIN * size_of(spec)
     bodies = tuple(b.name for b in spec.bodies)
     gaps = ()

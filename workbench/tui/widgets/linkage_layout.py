@@ -19,7 +19,7 @@ from .linkage_drawing import CELL_ASPECT
 PLOT_ROWS = (7, 13)  # least and most rows for the plots; a third of the view between them
 READOUT_WIDTH = 52  # columns the readout needs ("acceleration -12,345 deg/s² · jerk -1.234e+06 deg/s³")
 SIDE_FRAME = 2  # the side's left padding and its scroll bar
-MIN_DRAWING = 18  # columns (z gives the drawing the whole view)
+MIN_DRAWING = 14  # columns: at 80 the figures come first (z gives the drawing the whole view)
 WIDE_DRAWING = 40  # the drawing gives way to the bars only while it keeps this many columns
 ABOVE_GAIN = 1.2  # the drawing goes above only when that draws it this much larger
 MIN_DRAWING_ROWS = 6  # rows the drawing keeps above the readout and the table

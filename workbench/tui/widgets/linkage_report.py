@@ -8,6 +8,8 @@ which joints are involved; an under-driven one names its free motions.
 
 from __future__ import annotations
 
+import math
+
 from rich.console import Group
 from rich.table import Table
 from rich.text import Text
@@ -20,14 +22,16 @@ from ...axisreport import fmt
 from ...linkagefile import describe, split_ref
 from ...linkagereport import driver_words
 from ..format import OK_STYLE, OVER_STYLE, WARN_STYLE, degrees, number, unit_of, used_bar, verdict
-from .linkage_data import FULL_TURN, LinkageEntry
+from .linkage_data import FULL_TURN, STUDY_FAILED, LinkageEntry
 from .linkage_drawing import INVOLVED_MARK
 
 RATES = ("velocity", "acceleration", "jerk")
 LEAST_TRANSMISSION = 40.0  # deg: common practice (a rule of thumb, no single source)
 NEAR_ZERO = 1e-9  # a shown value this small (in its unit) is 0: what is left of a cancellation
-NARROW_TABLE = 54  # columns of a typical peaks table without bars (before a study is known)
-BAR_COLUMN = len("share of limit")  # the bar column's width ("████████  82 %" is as wide)
+NARROW_TABLE = 54  # columns of a typical peaks table without the share column (before a study is known)
+BARS, PERCENT = "bars", "percent"  # how the share of each limit is shown, widest first
+SHARE_COLUMN = {BARS: len("share of limit") + 1, PERCENT: len("used") + 2}  # its columns with the gap before
+NEAR_LIMIT = 0.9  # a share above this is shown as a warning (as the Axes view does)
 COLUMN_GAP = (0, 1, 0, 0)
 READOUT_ROWS = 5  # angle and output, rates, drivers, legend (which may wrap)
 
@@ -51,7 +55,8 @@ def status_words(entry: LinkageEntry | None) -> tuple[str, str]:
     if entry is None:
         return "(computing…)", "dim"
     if entry.study is None:
-        return "✗ CANNOT BE BUILT", OVER_STYLE
+        failed = (entry.problem or "").startswith(STUDY_FAILED)
+        return ("✗ COULD NOT BE STUDIED" if failed else "✗ CANNOT BE BUILT"), OVER_STYLE
     status = entry.status
     if status == SOLVED:
         if not any(o.checks for o in entry.study.outputs):
@@ -99,7 +104,8 @@ def bar_text(names: list[str], spec, entry: LinkageEntry | None, project, width:
 def trouble_lines(entry: LinkageEntry) -> list[tuple[str, str]]:
     """Why the linkage does not run through the cycle, in words: (line, style)."""
     if entry.study is None:
-        return [(f"✗ this linkage cannot be built now — {entry.problem}", OVER_STYLE)]
+        words, style = status_words(entry)
+        return [(words, style), (entry.problem or "", ""), (f"drawn {entry.still_words}", "dim")]
     result = entry.study.solution.result
     words, style = status_words(entry)
     out = [(words, style)]
@@ -197,17 +203,19 @@ def peak_rows(entry: LinkageEntry, name: str) -> dict[str, dict]:
     return rows
 
 
-def max_speed_text(entry: LinkageEntry, name: str) -> Text | None:
+def max_speed_text(entry: LinkageEntry, name: str, width: int = 1000) -> Text | None:
+    """"max speed within limits ✓ 87.32 cycles/min (now 80 cycles/min)"; without "within limits"
+    when that would not fit in `width` (max speed means within every limit)."""
     study = entry.output_study(name)
     if study is None:
         return None
-    now = f"now {number(study.speed, 'cycles/min')}"
+    now = f"(now {number(study.speed, 'cycles/min')})"
     if study.max_speed is None:
-        return Text(f"max speed: no limit binds ({now})", style="dim")
+        return Text(f"max speed: no limit binds {now}", style="dim")
     ok = study.max_speed >= study.speed
-    return Text.assemble("max speed within limits ",
-                         (f"{'✓' if ok else '✗'} {number(study.max_speed, 'cycles/min')}", OK_STYLE if ok else OVER_STYLE),
-                         f" (now {num(study.speed)})")
+    value = f"{'✓' if ok else '✗'} {number(study.max_speed, 'cycles/min')}"
+    label = "max speed within limits " if len(value) + len(now) + 25 <= width else "max speed "
+    return Text.assemble(label, (value, OK_STYLE if ok else OVER_STYLE), f" {now}")
 
 
 def note_lines(entry: LinkageEntry, name: str) -> list[str]:
@@ -234,17 +242,28 @@ def note_lines(entry: LinkageEntry, name: str) -> list[str]:
     return out
 
 
-def table_width(entry: LinkageEntry | None, output: str | None, bars: bool = False) -> int:
-    """Columns the peaks table of `output` takes (with the share-of-limit bars when `bars`)."""
+def table_width(entry: LinkageEntry | None, output: str | None, share: str | None = PERCENT) -> int:
+    """Columns the peaks table of `output` takes with the share of each limit shown as `share`:
+    `BARS`, `PERCENT` or None (not shown)."""
     rows = peak_rows(entry, output) if entry is not None and output is not None else {}
     if not rows:
-        return NARROW_TABLE
+        return NARROW_TABLE + SHARE_COLUMN.get(share, 0)
     columns = [max(len("peaks"), *(len(k) for k in rows))]
     for key, title in (("value", "value"), ("at", "at"), ("limit", "limit"), ("verdict", "verdict")):
         columns.append(max(len(title), *(len(r[key]) for r in rows.values())))
-    if bars:
-        columns.append(BAR_COLUMN)
+    if share is not None:
+        columns.append(SHARE_COLUMN[share] - 1)
     return sum(columns) + len(columns) - 1  # one blank column between columns
+
+
+def share_cell(used: float | None, share: str) -> Text:
+    """The share of a limit used, as a bar with its percentage or as the percentage alone."""
+    if used is None:
+        return Text("—", style="dim")
+    if share == BARS:
+        return used_bar(used)
+    style = OVER_STYLE if used > 1.0 else (WARN_STYLE if used > NEAR_LIMIT else OK_STYLE)
+    return Text("∞ %" if math.isinf(used) else f"{used * 100:.0f} %", style=style)
 
 
 def side_rows(entry: LinkageEntry | None, output: str | None) -> int:
@@ -279,7 +298,7 @@ class LinkageReport(Static):
         self._output: str | None = None
 
     def show(self, entry: LinkageEntry | None, output: str | None) -> None:
-        key = (id(entry), output, self._wide(entry, output))
+        key = (id(entry), output, self.size.width)
         if key == self._shown:
             return
         self._shown, self._entry, self._output = key, entry, output
@@ -302,33 +321,37 @@ class LinkageReport(Static):
         self.lines = [p.plain for p in parts if isinstance(p, Text)]
         self.update(Group(*parts))
 
-    def _wide(self, entry, output) -> bool:
-        return self.size.width >= table_width(entry, output, bars=True)
+    def _share(self, entry, output) -> str | None:
+        """How the share of each limit fits in this width: bars, the percentage, or not at all."""
+        for share in (BARS, PERCENT):
+            if self.size.width >= table_width(entry, output, share):
+                return share
+        return None
 
     def on_resize(self) -> None:
-        if self._shown is not None and self._shown[2] != self._wide(self._entry, self._output):
+        if self._shown is not None and self._shown[2] != self.size.width:
             self.show(self._entry, self._output)
 
     def _output_parts(self, entry: LinkageEntry, output: str) -> list:
-        wide = self._wide(entry, output)
+        share = self._share(entry, output)
         self.rows = peak_rows(entry, output)
         table = Table(box=None, padding=COLUMN_GAP, show_edge=False, pad_edge=False, expand=False,
                       header_style="bold")
         for name, justify in (("peaks", "left"), ("value", "right"), ("at", "right"), ("limit", "right")):
             table.add_column(name, justify=justify, no_wrap=True)
-        if wide:
-            table.add_column("share of limit", no_wrap=True)
+        if share is not None:
+            table.add_column("share of limit" if share == BARS else "used", no_wrap=True,
+                             justify="left" if share == BARS else "right")
         table.add_column("verdict", no_wrap=True)
         for what, row in self.rows.items():
             cells = [what, Text(row["value"], style=OVER_STYLE if row["value"] == "infinite" else ""), row["at"],
                      row["limit"]]
-            if wide:
-                used = row["used"]
-                cells.append(used_bar(used) if used is not None else Text("" if what in ("lowest", "highest") else "—", style="dim"))
+            if share is not None:
+                cells.append(Text("") if what in ("lowest", "highest") else share_cell(row["used"], share))
             cells.append(verdict(row["used"]) if what not in ("lowest", "highest") else Text(""))
             table.add_row(*cells)
         parts = [output_header(entry, output, self.size.width), table]
-        speed = max_speed_text(entry, output)
+        speed = max_speed_text(entry, output, self.size.width)
         if speed is not None:
             parts.append(speed)
         parts += [Text(line, style=WARN_STYLE) for line in note_lines(entry, output)]
