@@ -219,8 +219,8 @@ class DenseFactor:
             self._condition = np.where(np.isfinite(cond), cond, np.inf)
         return self._condition
 
-    def solve(self, b: np.ndarray) -> np.ndarray:
-        """x (n, N) with Φq x = b (m, N), per instant."""
+    def solve(self, b: np.ndarray, overwrite: bool = False) -> np.ndarray:
+        """x (n, N) with Φq x = b (m, N), per instant (`overwrite` is accepted for symmetry; b is kept)."""
         x = np.einsum("kij,jk->ik", self.inverse, b * self.row_scale)
         return x * self.col_scale
 
@@ -291,10 +291,10 @@ class SparseFactor:
         with np.errstate(divide="ignore"):
             self.condition = np.where(smallest > 0.0, largest / smallest, np.inf) if r else np.ones(N)
 
-    def solve(self, b: np.ndarray) -> np.ndarray:
-        """x (n, N) with Φq x = b (m, N), per instant."""
+    def solve(self, b: np.ndarray, overwrite: bool = False) -> np.ndarray:
+        """x (n, N) with Φq x = b (m, N), per instant; with `overwrite`, b (a temporary) is used as scratch."""
         plan = self.plan
-        x = b.copy()
+        x = b if overwrite else b.copy()
         for s, L in zip(plan.steps, self.multipliers):
             if L is None:
                 continue

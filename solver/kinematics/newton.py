@@ -54,7 +54,7 @@ def newton(
     for iteration in range(1, max_iterations + 1):
         res, jac = system.residual_jacobian(q, drive)
         F = factor(plan, jac, system.row_scale, system.col_scale)
-        step = F.solve(-res)
+        step = F.solve(-res, overwrite=True)
         with np.errstate(invalid="ignore"):
             converged = (system.scaled_step(step) <= tolerance) & (
                 system.scaled_residual(res) <= max(tolerance, RESIDUAL_TOLERANCE)
@@ -74,11 +74,11 @@ def newton(
 def derivatives(system, solved: Solved, drive: np.ndarray, orders: int = 3):
     """q', q'', q''' (each (n, N), per rad^k of master angle) with the factored Φq; the first `orders` (2 or 3)."""
     F, q = solved.factor, solved.q
-    dq = F.solve(system.velocity_rhs(drive))
-    ddq = F.solve(system.gamma(q, dq, drive))
+    dq = F.solve(system.velocity_rhs(drive), overwrite=True)
+    ddq = F.solve(system.gamma(q, dq, drive), overwrite=True)
     if orders == 2:
         return dq, ddq
-    dddq = F.solve(system.eta(q, dq, ddq, drive, after_gamma=True))
+    dddq = F.solve(system.eta(q, dq, ddq, drive, after_gamma=True), overwrite=True)
     return dq, ddq, dddq
 
 

@@ -104,6 +104,7 @@ COMPILED_FIELDS = (
     "row_names", "row_units", "m", "first_driver_row", "groups", "row_scale", "col_scale", "_template",
     "_active", "_affine_rows", "_affine_matrix", "_affine_offset", "_affine_gamma", "_affine_eta",
     "_plan", "slots", "slot_entries", "slot_rows", "slot_cols", "_fixed_slots", "_fixed_values",
+    "_fixed_dirty", "_fixed_dirty_values",
 )
 
 
@@ -138,6 +139,7 @@ class System:
         self._give_back = None
         self._poses_shape = None  # shape of the poses buffer while it holds consistent poses (x, y, φ, cos, sin)
         self._slot_views: dict = {}  # (key, group) -> (gathered buffer, Pose or Rates objects viewing it)
+        self._values_filled = None  # the Jacobian buffer while it holds the constant entries
         self._kept = None  # poses and rates of the last gamma call, for eta(after_gamma=True)
 
         entries = [(j.name, j.resolve(mechanism)) for j in mechanism.joints.values()]
@@ -280,6 +282,7 @@ class System:
             self._kept = None
             self._poses_shape = None
             self._slot_views.clear()
+            self._values_filled = None
 
     def _poses(self, q: np.ndarray, reuse: bool = False) -> np.ndarray:
         """(5, B+1, N): x, y, φ, cos φ, sin φ of every body; the ground (last) at rest at the origin.
@@ -403,7 +406,11 @@ class System:
         N = q.shape[1]
         res = np.empty((self.m, N))
         values = self._buffer("jacobian", (self.slots + 2, N))  # valid until the next evaluation
-        values[self._fixed_slots] = self._fixed_values
+        if values is self._values_filled:  # constants still there: restore those the last factorization overwrote
+            values[self._fixed_dirty] = self._fixed_dirty_values
+        else:
+            values[self._fixed_slots] = self._fixed_values
+            self._values_filled = values
         self._affine_residual(res, q)
         for g in self._active:
             poses = self._slot_poses(g, arrays)
@@ -528,9 +535,16 @@ class System:
         values = np.append(self._template[:, :n].ravel()[flat], [0.0, 0.0])
         self._fixed_slots = np.flatnonzero(~varying)
         self._fixed_values = values[self._fixed_slots][:, None]
+        overwritten = np.zeros(self.slots + 2, dtype=bool)
         if plan is not None:
             constants = np.where(varying, np.nan, values)  # entries the same at every configuration
             plan.bind(slot_of, constants)
+            for step in plan.steps:  # fill-in updates of a sparse factorization overwrite these
+                overwritten[step.grid_slots.ravel()] = True
+        # constant entries to restore before the next factorization when the buffer still holds the rest
+        self._fixed_dirty = np.flatnonzero(~varying & overwritten)
+        self._fixed_dirty_values = values[self._fixed_dirty][:, None]
+        self._values_filled = None
 
     def initial_guess(self) -> np.ndarray:
         """The rough initial coordinates of the moving bodies, (n,)."""
