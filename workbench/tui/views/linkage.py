@@ -39,7 +39,7 @@ from ..widgets.linkage_data import (
     study_entry,
 )
 from ..widgets.linkage_drawing import LinkageDrawing, legend
-from ..widgets.linkage_layout import arrange
+from ..widgets.linkage_layout import VIEW_CSS, arrange
 from ..widgets.linkage_empty import no_linkage_text
 from ..widgets.linkage_plots import LinkagePlot, output_plot
 from ..widgets.linkage_readout import readout_text
@@ -73,35 +73,7 @@ class LinkageView(WorkbenchView):
     view_id = "linkage"
     title = "Linkage"
 
-    DEFAULT_CSS = """
-    LinkageView { layout: vertical; }
-    #lk-top { height: 1fr; }
-    #lk-drawing { width: 30; height: 100%; }
-    #lk-drawing:focus { background: $boost; }
-    #lk-side { width: 1fr; height: 1fr; padding: 0 0 0 1; scrollbar-size-vertical: 1; }
-    #lk-info { height: auto; margin-bottom: 1; }
-    #lk-readout { height: auto; }
-    .lk-legend { height: auto; }
-    #lk-legend { display: none; }
-    #lk-legend-last { margin-top: 1; }
-    #lk-top.-above #lk-legend { display: block; }
-    #lk-top.-above #lk-legend-last { display: none; }
-    #lk-top.-above { layout: vertical; }
-    #lk-top.-above #lk-drawing { width: 100%; height: 1fr; }
-    #lk-top.-above #lk-side { layout: horizontal; width: 100%; height: 12; }
-    #lk-top.-above #lk-info { width: 54; margin-bottom: 0; padding-right: 2; }
-    #lk-top.-above #lk-report { width: 1fr; }
-    LinkageView.-zoom #lk-report, LinkageView.-zoom #lk-legend-last {
-        display: none;
-    }
-    LinkageView.-zoom #lk-top { layout: vertical; }
-    LinkageView.-zoom #lk-drawing { height: 1fr; }
-    LinkageView.-zoom #lk-side { height: auto; max-height: 8; }
-    LinkageView.-zoom #lk-legend { display: block; }
-    #lk-plots { height: 9; }
-    #lk-plots LinkagePlot { width: 1fr; }
-    #lk-empty { padding: 1 2; }
-    """
+    DEFAULT_CSS = VIEW_CSS
 
     BINDINGS = [
         Binding("right", f"step({COARSE_STEP:g})", f"+{COARSE_STEP:g}°", key_display="→", priority=True,

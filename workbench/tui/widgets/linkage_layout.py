@@ -24,6 +24,38 @@ WIDE_DRAWING = 40  # the drawing gives way to the bars only while it keeps this 
 ABOVE_GAIN = 1.2  # the drawing goes above only when that draws it this much larger
 MIN_DRAWING_ROWS = 6  # rows the drawing keeps above the readout and the table
 
+# The view's parts and the classes `arrange` and the zoom key switch: "-above" on #lk-top (the drawing
+# above the figures, which then stand side by side), "-zoom" on the view (the drawing and the readout only).
+VIEW_CSS = """
+LinkageView { layout: vertical; }
+#lk-top { height: 1fr; }
+#lk-drawing { width: 30; height: 100%; }
+#lk-drawing:focus { background: $boost; }
+#lk-side { width: 1fr; height: 1fr; padding: 0 0 0 1; scrollbar-size-vertical: 1; }
+#lk-info { height: auto; margin-bottom: 1; }
+#lk-readout { height: auto; }
+.lk-legend { height: auto; }
+#lk-legend { display: none; }
+#lk-legend-last { margin-top: 1; }
+#lk-top.-above #lk-legend { display: block; }
+#lk-top.-above #lk-legend-last { display: none; }
+#lk-top.-above { layout: vertical; }
+#lk-top.-above #lk-drawing { width: 100%; height: 1fr; }
+#lk-top.-above #lk-side { layout: horizontal; width: 100%; height: 12; }
+#lk-top.-above #lk-info { width: 54; margin-bottom: 0; padding-right: 2; }
+#lk-top.-above #lk-report { width: 1fr; }
+LinkageView.-zoom #lk-report, LinkageView.-zoom #lk-legend-last {
+    display: none;
+}
+LinkageView.-zoom #lk-top { layout: vertical; }
+LinkageView.-zoom #lk-drawing { height: 1fr; }
+LinkageView.-zoom #lk-side { height: auto; max-height: 8; }
+LinkageView.-zoom #lk-legend { display: block; }
+#lk-plots { height: 9; }
+#lk-plots LinkagePlot { width: 1fr; }
+#lk-empty { padding: 1 2; }
+"""
+
 
 @dataclass(frozen=True)
 class Arrangement:
