@@ -21,7 +21,7 @@ from ...projectfile import Project
 from ..compute import AxisResult
 from ..format import axis_verdict, number
 from ..messages import ProjectEdited, Status
-from ..widgets.motion_plots import PlotPanel
+from ..widgets.axis_plots import PlotPanel
 from ..widgets.peaks_panel import PeaksPanel
 from ..widgets.segment_table import SegmentTable
 from . import axes_dialogs as dialogs

@@ -33,14 +33,21 @@ def line_dots(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return px, py
 
 
-def braille_cells(x: np.ndarray, y: np.ndarray, columns: int, rows: int):
-    """(column, row, character) of every cell the polyline touches; (x, y) in cell units,
-    points outside the `columns` × `rows` area are left out."""
+def braille_grid(x: np.ndarray, y: np.ndarray, columns: int, rows: int) -> np.ndarray:
+    """Dot masks (`rows` × `columns`, 0 where no dot) of the polyline through (x, y), given in
+    cell units; dots outside the area are left out.  Character = chr(BRAILLE_BASE + mask)."""
     px, py = line_dots(np.asarray(x, dtype=float) * DOTS_X, np.asarray(y, dtype=float) * DOTS_Y)
     inside = (px >= 0) & (px < columns * DOTS_X) & (py >= 0) & (py < rows * DOTS_Y)
     px, py = px[inside], py[inside]
     masks = np.zeros(columns * rows, dtype=np.int64)
     np.bitwise_or.at(masks, (py // DOTS_Y) * columns + px // DOTS_X, DOT_BITS[py % DOTS_Y, px % DOTS_X])
+    return masks.reshape(rows, columns)
+
+
+def braille_cells(x: np.ndarray, y: np.ndarray, columns: int, rows: int):
+    """(column, row, character) of every cell the polyline touches; (x, y) in cell units,
+    points outside the `columns` × `rows` area are left out."""
+    masks = braille_grid(x, y, columns, rows).ravel()
     cells = np.flatnonzero(masks)
     chars = [chr(BRAILLE_BASE + int(m)) for m in masks[cells]]
     return cells % columns, cells // columns, chars

@@ -1,67 +1,29 @@
-"""Plots of position, velocity, acceleration and jerk against master angle.
+"""Braille plots against master or cam angle on textual-plot's `PlotWidget`.
 
-`MotionPlot` wraps textual-plot's `PlotWidget`: braille lines, segment
-boundaries as vertical lines, the ± limit as horizontal lines, ticks sized
-to the plot's height.  Curves are reduced to about two points per pixel
-column (min and max per bucket) before drawing, since drawing costs per point.
-`PlotPanel` shows one plot at a time in a short terminal and all four when
-there is room.
+`MotionPlot` is the base of the Cam, Loads and Linkage views' angle plots
+(`cam_plots.AnglePlot`): braille lines drawn with numpy, ticks sized to the
+plot's height, 0–360° scale, the title left-aligned above the plot.
+Subclasses decide what to draw in `redraw`.  (The Axes view draws its own
+plots from cached strips: `axis_plots`.)
 """
 
 from __future__ import annotations
 
-import math
 from contextlib import ExitStack
 from typing import Sequence
 
-import numpy as np
-from rich.markup import escape
 from textual.app import ComposeResult
 from textual.containers import Grid
-from textual.reactive import reactive
-from textual.widgets import Static
 from textual_hires_canvas import Canvas, TextAlign
 from textual_plot import HiResMode, PlotWidget
 from textual_plot.plot_widget import Legend
 from textual_plot.axis_formatter import AxisFormatter
 
-from ..compute import QUANTITIES, AxisResult
-from ...axisreport import fmt
-from ..format import unit_of
-from ..sampling import downsample_minmax
-from .braille import braille_cells
+from .axis_chart import ROWS_PER_TICK, compact, nice_ticks
+from .braille import DOTS_X as BRAILLE_DOTS_X, braille_cells
 
-CURVE_STYLE = {"position": "bright_cyan", "velocity": "bright_green",
-               "acceleration": "bright_yellow", "jerk": "bright_blue"}
-LIMIT_STYLE = "red"  # the limit lines; the title says "limit ±…" in words too
-BOUNDARY_STYLE = "bright_black"
-ROWS_PER_TICK = 3  # a y tick label every 3 rows at most, so labels never touch
-MIN_ROWS_FOR_GRID = 14  # below this height only one plot is shown at a time
-MIN_COLUMNS_FOR_GRID = 100  # 2×2 grid needs this width; narrower stacks them
-BRAILLE_DOTS_X = 2  # braille cells are 2 dots wide
-
-
-def compact(value: float) -> str:
-    """Short tick label: 25k, -1.2M, 0.5."""
-    a = abs(value)
-    if a >= 1e6:
-        return f"{value / 1e6:.3g}M"
-    if a >= 1e4:
-        return f"{value / 1e3:.3g}k"
-    if a == 0:
-        return "0"
-    return f"{value:.4g}"
-
-
-def nice_ticks(lo: float, hi: float, count: int) -> list[float]:
-    """About `count` ticks at 1-2-5 steps covering [lo, hi]."""
-    if hi <= lo or count < 2:
-        return [lo]
-    raw = (hi - lo) / count
-    power = 10 ** math.floor(math.log10(raw))
-    step = max(m * power for m in (1, 2, 2.5, 5, 10) if m * power <= raw * (1 + 1e-9))
-    first = math.ceil(lo / step - 1e-9) * step
-    return [float(t) for t in np.arange(first, hi + step * 1e-6, step)]
+__all__ = ["BRAILLE_DOTS_X", "ROWS_PER_TICK", "AngleFormatter", "FrameCanvas", "MotionPlot",
+           "TickFormatter", "compact", "nice_ticks"]
 
 
 class TickFormatter(AxisFormatter):
@@ -110,7 +72,7 @@ class FrameCanvas(Canvas):
 
 
 class MotionPlot(PlotWidget, can_focus=False):
-    """One quantity of one axis against master angle (deg)."""
+    """A braille plot against an angle, 0–360° (deg); subclasses draw in `redraw`."""
 
     DEFAULT_CSS = """
     MotionPlot { height: 1fr; min-height: 5; }
@@ -119,7 +81,6 @@ class MotionPlot(PlotWidget, can_focus=False):
     def __init__(self, quantity: str, **kwargs):
         super().__init__(allow_pan_and_zoom=False, **kwargs)
         self.quantity = quantity
-        self.result: AxisResult | None = None
         self.points_drawn = 0
         """Points handed to the plot after downsampling (for the benchmark and tests)."""
         self.title = ""
@@ -179,117 +140,5 @@ class MotionPlot(PlotWidget, can_focus=False):
     def on_resize(self) -> None:
         self.call_after_refresh(self.redraw)
 
-    def show(self, result: AxisResult | None) -> None:
-        if result is self.result:
-            return
-        self.result = result
-        self.redraw()
-
     def redraw(self) -> None:
-        """Draw the curve again at the current size (skipped while hidden)."""
-        if not self.is_mounted or not self.display or self.size.width == 0:
-            return
-        # the canvases may have changed size without this widget changing (margins): recheck
-        self._needs_canvas_resize = True
-        self.clear()
-        result = self.result
-        if result is None:
-            self.title = ""
-            self.set_ylabel("")
-            return
-        q = self.quantity
-        unit = unit_of(q, result.unit)
-        y = result.curves.of(q)
-        columns = max(8, self.size.width - self.margin_left - 2)
-        xs, ys = downsample_minmax(result.curves.theta, y, columns * BRAILLE_DOTS_X)
-        self.points_drawn = int(xs.size)
-        lo, hi = float(np.min(ys)), float(np.max(ys))
-        limit = None
-        if q != "position":
-            check = next((c for c in result.report.checks if c.quantity == q), None)
-            if check is not None:
-                limit = check.limit
-                lo, hi = min(lo, -limit), max(hi, limit)
-        if hi - lo < 1e-12 * max(1.0, abs(hi)):
-            lo, hi = lo - 1.0, hi + 1.0
-        pad = 0.05 * (hi - lo)
-        self.set_ylimits(lo - pad, hi + pad)
-        rows = max(1, self.size.height - self.margin_top - self.margin_bottom)
-        self._y_tick_format.count = max(2, rows // ROWS_PER_TICK + 1)
-        for b in result.bounds:
-            self.add_v_line(b, BOUNDARY_STYLE)
-        if limit is not None:
-            for sign in (1.0, -1.0):
-                self.plot([0.0, 360.0], [sign * limit, sign * limit], line_style=LIMIT_STYLE,
-                          hires_mode=HiResMode.BRAILLE)
-        self.plot(xs, ys, line_style=CURVE_STYLE[q], hires_mode=HiResMode.BRAILLE)
-        self.title = self._title(result, limit)
-        self.set_ylabel(escape(self.title))
-
-    def _title(self, result: AxisResult, limit: float | None) -> str:
-        q = self.quantity
-        unit = unit_of(q, result.unit)
-        if q == "position":
-            s = result.curves.position
-            return f"position [{unit}]  {fmt(float(s.min()))} … {fmt(float(s.max()))}"
-        peak = result.report.peaks[q]
-        text = f"{q} [{unit}]  peak "
-        text += "infinite" if peak.infinite else fmt(peak.value)
-        if limit is not None:
-            text += f"  limit ±{fmt(limit)} (red)"
-        return text
-
-
-class PlotPanel(Grid):
-    """Up to four `MotionPlot`s; `shown` is the one on view when only one fits."""
-
-    DEFAULT_CSS = """
-    PlotPanel { height: 1fr; grid-size: 1; grid-gutter: 0 1; }
-    PlotPanel.-grid { grid-size: 2 2; }
-    PlotPanel.-stack { grid-size: 1 4; }
-    PlotPanel.-single MotionPlot { display: none; }
-    PlotPanel.-single MotionPlot.-shown { display: block; }
-    """
-
-    shown: reactive[str] = reactive("velocity")
-    """The quantity on view when the panel shows one plot at a time."""
-
-    def compose(self) -> ComposeResult:
-        for q in QUANTITIES:
-            yield MotionPlot(q, id=f"plot-{q}")
-
-    def on_mount(self) -> None:
-        self._layout()
-
-    def on_resize(self) -> None:
-        self._layout()
-
-    def _layout(self) -> None:
-        w, h = self.size
-        grid = h >= MIN_ROWS_FOR_GRID and w >= MIN_COLUMNS_FOR_GRID
-        stack = not grid and h >= 4 * 7
-        self.set_class(grid, "-grid")
-        self.set_class(stack, "-stack")
-        self.set_class(not (grid or stack), "-single")
-        self.watch_shown(self.shown)
-
-    @property
-    def single(self) -> bool:
-        return self.has_class("-single")
-
-    def watch_shown(self, quantity: str) -> None:
-        for plot in self.query(MotionPlot):
-            plot.set_class(plot.quantity == quantity, "-shown")
-            self.call_after_refresh(plot.redraw)
-
-    def next_quantity(self) -> str:
-        i = QUANTITIES.index(self.shown)
-        self.shown = QUANTITIES[(i + 1) % len(QUANTITIES)]
-        return self.shown
-
-    def show(self, result: AxisResult | None) -> None:
-        for plot in self.query(MotionPlot):
-            plot.show(result)
-
-    def plot(self, quantity: str) -> MotionPlot:
-        return self.query_one(f"#plot-{quantity}", MotionPlot)
+        """Draw again at the current size; subclasses say what."""
