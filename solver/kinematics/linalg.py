@@ -261,15 +261,17 @@ class SparseFactor:
         self.rest_col_scale = col_scale[C][:, None]
         S = V[plan.rest_slots] * (self.rest_row_scale[:, :, None] * self.rest_col_scale[None, :, :])
         r = len(R)
-        perm = np.tile(np.arange(r)[:, None], (1, N))
+        perm = np.empty((r, N), dtype=np.intp)
+        perm[:] = np.arange(r)[:, None]
+        self.instants = instants = np.arange(N)  # for per-instant fancy indexing
         smallest = np.full(N, np.inf)
         largest = np.ones(N)  # constant pivots are 1 in magnitude
         for k in range(r):
             if k + 1 < r:
-                rel = np.argmax(np.abs(S[k:, k, :]), axis=0)  # pivot row per instant, counted from row k
+                rel = np.abs(S[k:, k, :]).argmax(axis=0)  # pivot row per instant, counted from row k
                 if rel.any():
-                    _swap_rows(S, k, rel)
-                    _swap_rows(perm, k, rel)
+                    _swap_rows(S, k, rel, instants)
+                    _swap_rows(perm, k, rel, instants)
                     np.negative(det_sign, out=det_sign, where=rel != 0)
             pivot = S[k, k]
             det_sign *= np.sign(pivot)
@@ -312,13 +314,13 @@ class SparseFactor:
         R, C = plan.rest_rows, plan.rest_cols
         r = len(R)
         if r:
-            y = np.take_along_axis(x[R] * self.rest_row_scale, self.perm, axis=0)
+            y = (x[R] * self.rest_row_scale)[self.perm, self.instants]  # rows in pivot order, per instant
             S = self.S
             for k in range(1, r):
-                y[k] -= S[k, 0] * y[0] if k == 1 else np.sum(S[k, :k] * y[:k], axis=0)
+                y[k] -= S[k, 0] * y[0] if k == 1 else (S[k, :k] * y[:k]).sum(axis=0)
             for k in range(r - 1, -1, -1):
                 if k + 1 < r:
-                    y[k] -= S[k, k + 1] * y[k + 1] if k + 2 == r else np.sum(S[k, k + 1 :] * y[k + 1 :], axis=0)
+                    y[k] -= S[k, k + 1] * y[k + 1] if k + 2 == r else (S[k, k + 1 :] * y[k + 1 :]).sum(axis=0)
                 with np.errstate(all="ignore"):
                     y[k] /= S[k, k]
             out[C] = y * self.rest_col_scale
@@ -328,7 +330,7 @@ class SparseFactor:
                 if s.right.size == 1:
                     value = value - row[0] * out[s.right[0]]
                 else:
-                    value = value - np.sum(row * out[s.right], axis=0)
+                    value = value - (row * out[s.right]).sum(axis=0)
             if s.pivot_value == 1.0:
                 out[s.c] = value
             elif s.pivot_value == -1.0:
@@ -338,14 +340,17 @@ class SparseFactor:
         return out
 
 
-def _swap_rows(A: np.ndarray, k: int, rel: np.ndarray) -> None:
+def _swap_rows(A: np.ndarray, k: int, rel: np.ndarray, instants: np.ndarray) -> None:
     """Exchange row k of A (rows first, instants last) with row k + rel, instant by instant (rel (N,) ≥ 0).
 
-    Whole rows are gathered and selected, so every operation runs over
-    contiguous instants (no scattered reads of the instants that move).
+    The pivot rows are gathered once; the rows they leave take row k by
+    masked copies, which run over contiguous instants.  `instants` is
+    arange(N).
     """
-    index = rel.reshape((1,) * (A.ndim - 1) + rel.shape)
-    chosen = np.take_along_axis(A[k:], index, axis=0)[0]
+    if A.ndim == 3:
+        chosen = A[k:][rel, :, instants].T  # (N, columns) gathered, seen as (columns, N)
+    else:
+        chosen = A[k:][rel, instants]
     for i in range(1, A.shape[0] - k):
         np.copyto(A[k + i], A[k], where=rel == i)
     A[k] = chosen
