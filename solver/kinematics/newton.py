@@ -7,6 +7,7 @@ step ‖Δq‖∞ and the residual ‖Φ‖∞ are below their tolerances.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -51,14 +52,24 @@ def newton(
     q = q.copy()
     converged = np.zeros(q.shape[1], dtype=bool)
     F = None
+    residual_tolerance = max(tolerance, RESIDUAL_TOLERANCE)
     for iteration in range(1, max_iterations + 1):
         res, jac = system.residual_jacobian(q, drive)
         F = factor(plan, jac, system.row_scale, system.col_scale)
         step = F.solve(-res, overwrite=True)
+        if q.shape[1] == 1:  # one instant (a march step): the same tests on plain numbers
+            size = float(system.scaled_step(step)[0])  # NaN or inf unless every entry is finite
+            done = size <= tolerance and float(system.scaled_residual(res)[0]) <= residual_tolerance
+            converged = np.array([done])
+            if math.isfinite(size):
+                q += step
+                if done or iteration == max_iterations:
+                    system.advance_poses(step)
+            if done:
+                return Solved(q, converged, F, iteration)
+            continue
         with np.errstate(invalid="ignore"):
-            converged = (system.scaled_step(step) <= tolerance) & (
-                system.scaled_residual(res) <= max(tolerance, RESIDUAL_TOLERANCE)
-            )
+            converged = (system.scaled_step(step) <= tolerance) & (system.scaled_residual(res) <= residual_tolerance)
         if np.isfinite(step).all():
             q += step
             if iteration == max_iterations or converged.all():
