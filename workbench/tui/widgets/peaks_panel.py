@@ -2,17 +2,17 @@
 
 from __future__ import annotations
 
-from rich.console import Group
-from rich.table import Table
+from rich.cells import cell_len
+from rich.segment import Segment
 from rich.text import Text
-from textual.widgets import Static
+from textual.geometry import Size
+from textual.strip import Strip
+from textual.widget import Widget
 
 from motionlaws.peaks import QUANTITIES
 
 from ..compute import AxisResult
-from ..format import OVER_STYLE, OK_STYLE, WARN_STYLE, degrees, number, unit_of, used_bar, verdict
-
-
+from ..format import BAR_WIDTH, OVER_STYLE, OK_STYLE, WARN_STYLE, degrees, number, unit_of, used_bar, verdict
 
 JUMPS = (  # (attribute, what jumps, unit power, what follows)
     ("velocity_jump", "velocity", "/s", "acceleration and jerk ∞"),
@@ -53,59 +53,153 @@ def max_speed_line(result: AxisResult) -> Text:
     )
 
 
-class PeaksPanel(Static):
-    """A compact peaks-vs-limits table; `rows` keeps the shown values for tests."""
+class PeaksPanel(Widget):
+    """A compact peaks-vs-limits table; `rows` keeps the shown values for tests.
+
+    The lines are laid out as Rich `Text` (the table's columns padded by
+    hand, `table_lines`) and painted from strips kept until the result or
+    the width changes; a layout pass is asked for only when the number of
+    lines may change.  The table keeps one line per quantity (narrower
+    forms first, `table_lines`); the other lines wrap."""
 
     DEFAULT_CSS = """
     PeaksPanel { height: auto; }
     """
 
     def __init__(self, **kwargs):
-        super().__init__("", **kwargs)
+        super().__init__(**kwargs)
         self.result: AxisResult | None = None
-        self._height = 0
+        self.cells: list[list[Text]] = []
+        """The table: a header, then one row per quantity (`COLUMNS`)."""
+        self.lines: list[Text] = [Text("computing …", style="dim")]
+        """The lines under the table (max speed, joins), before wrapping."""
         self.rows: dict[str, dict] = {}
         """Per quantity: value, at, limit, used, verdict text as shown."""
+        self._version = 0
+        """Counts what was shown (keys the caches below)."""
+        self._wrapped: tuple[tuple, list[Text]] = ((), [])
+        self._strips: tuple[tuple, list[Strip]] = ((), [])
 
     def show(self, result: AxisResult | None) -> None:
         if result is not None and result is self.result:
             return
         self.result = result
+        before = len(self.cells) + len(self.lines)
         if result is None:
-            self.rows = {}
-            self._height = 1
-            self.update(Text("computing …", style="dim"))
-            return
-        report = result.report
-        checks = {c.quantity: c for c in report.checks}
-        table = Table(box=None, padding=(0, 1), show_edge=False, expand=False, header_style="bold")
-        table.add_column("peaks")
-        table.add_column("value", justify="right")
-        table.add_column("at", justify="right")
-        table.add_column("limit", justify="right")
-        table.add_column("share of limit", no_wrap=True)
-        table.add_column("verdict", no_wrap=True)
-        self.rows = {}
-        for q in QUANTITIES:
-            peak = report.peaks[q]
-            unit = unit_of(q, result.unit)
-            check = checks.get(q)
-            value = "infinite" if peak.infinite else number(peak.value, unit)
-            used = check.used if check else None
-            word = verdict(used)
-            table.add_row(
-                q,
-                Text(value, style=OVER_STYLE if peak.infinite else ""),
-                degrees(peak.at),
-                number(check.limit, unit) if check else "—",
-                used_bar(used) if used is not None else Text("—", style="dim"),
-                word,
-            )
-            self.rows[q] = {"value": value, "at": degrees(peak.at),
-                            "limit": number(check.limit, unit) if check else "—",
-                            "used": used, "verdict": word.plain}
-        lines = join_lines(result) or [Text("joins: ✓ no jumps in velocity or acceleration", style="dim")]
-        # header + 3 quantities + max speed + joins; a layout pass only when that count changes
-        height = 5 + len(lines)
-        self.update(Group(table, max_speed_line(result), *lines), layout=height != self._height)
-        self._height = height
+            self.rows, self.cells = {}, []
+            self.lines = [Text("computing …", style="dim")]
+        else:
+            self.rows, self.cells = peak_rows(result)
+            joins = join_lines(result) or [Text("joins: ✓ no jumps in velocity or acceleration", style="dim")]
+            self.lines = [max_speed_line(result), *joins]
+        self._version += 1
+        wraps = any(line.cell_len > self.size.width for line in self.lines)  # the height may change
+        self.refresh(layout=wraps or len(self.cells) + len(self.lines) != before)
+
+    def _lines_at(self, width: int) -> list[Text]:
+        """The lines as shown at `width`: the table in the widest form that fits, others wrapped."""
+        key = (self._version, width)
+        if self._wrapped[0] != key:
+            console, out = self.app.console, table_lines(self.cells, width) if self.cells else []
+            for line in self.lines:
+                out += line.wrap(console, width) if line.cell_len > width > 0 else [line]
+            self._wrapped = (key, out)
+        return self._wrapped[1]
+
+    def get_content_height(self, container: Size, viewport: Size, width: int) -> int:
+        return len(self._lines_at(width))
+
+    def render_line(self, y: int) -> Strip:
+        width, style = self.size.width, self.rich_style
+        key = (self._version, width, style)
+        if self._strips[0] != key:
+            console = self.app.console
+            strips = [Strip(Segment.apply_style(line.render(console), style)).adjust_cell_length(width, style)
+                      for line in self._lines_at(width)]
+            self._strips = (key, strips)
+        strips = self._strips[1]
+        return strips[y] if y < len(strips) else Strip.blank(width, style)
+
+
+COLUMNS = (  # (header, justify) of the peaks table
+    ("peaks", "left"), ("value", "right"), ("at", "right"), ("limit", "right"),
+    ("share of limit", "left"), ("verdict", "left"),
+)
+CELL_PAD = 1  # spaces either side of every cell (two between columns)
+
+
+def peak_rows(result: AxisResult) -> tuple[dict[str, dict], list[list[Text]]]:
+    """The values per quantity (`PeaksPanel.rows`) and the table's cells: a bold header, then one
+    row per quantity."""
+    report = result.report
+    checks = {c.quantity: c for c in report.checks}
+    rows, cells = {}, [[Text(header, style="bold") for header, _ in COLUMNS]]
+    for q in QUANTITIES:
+        peak = report.peaks[q]
+        unit = unit_of(q, result.unit)
+        check = checks.get(q)
+        value = "infinite" if peak.infinite else number(peak.value, unit)
+        used = check.used if check else None
+        word = verdict(used)
+        limit = number(check.limit, unit) if check else "—"
+        cells.append([
+            Text(q),
+            Text(value, style=OVER_STYLE if peak.infinite else ""),
+            Text(degrees(peak.at)),
+            Text(limit),
+            used_bar(used) if used is not None else Text("—", style="dim"),
+            word,
+        ])
+        rows[q] = {"value": value, "at": degrees(peak.at), "limit": limit, "used": used, "verdict": word.plain}
+    return rows, cells
+
+
+def table_lines(cells: list[list[Text]], width: int) -> list[Text]:
+    """Rows of cells as lines, each column padded to its widest cell (justified as `COLUMNS` says)
+    with `CELL_PAD` spaces either side: the widest form that fits in `width` of (1) that,
+    (2) without the pad at the table's outer edges, (3) the share of limit as a percentage only
+    (no bar); the last form cropped when nothing fits."""
+    for outer, bars in ((True, True), (False, True), (False, False)):
+        rows = cells if bars else [[*row[:SHARE], share_only(row[SHARE], header=i == 0), *row[SHARE + 1:]]
+                                   for i, row in enumerate(cells)]
+        lines = _padded(rows, outer)
+        if max(line.cell_len for line in lines) <= width:
+            break
+    return lines
+
+
+SHARE = 4  # column of the share of limit
+
+
+def share_only(cell: Text, header: bool) -> Text:
+    """The share-of-limit cell without its bar ("71 %"), or the header shortened ("share")."""
+    if header:
+        return Text("share", style=cell.style)
+    plain = cell.plain
+    if plain == "—":
+        return cell
+    start = BAR_WIDTH + 1
+    while start < len(plain) and plain[start] == " ":
+        start += 1
+    return cell[start:]
+
+
+def _padded(rows: list[list[Text]], outer: bool) -> list[Text]:
+    widths = [max(cell_len(row[c].plain) for row in rows) for c in range(len(COLUMNS))]
+    pad, last = " " * CELL_PAD, len(COLUMNS) - 1
+    lines = []
+    for row in rows:
+        line = Text(no_wrap=True, overflow="crop")
+        for c, (cell, width, (_, justify)) in enumerate(zip(row, widths, COLUMNS)):
+            space = " " * (width - cell_len(cell.plain))
+            if outer or c > 0:
+                line.append(pad)
+            if justify == "right":
+                line.append(space)
+            line.append_text(cell)
+            if justify != "right" and c < last:
+                line.append(space)
+            if outer or c < last:
+                line.append(pad)
+        lines.append(line)
+    return lines
