@@ -27,7 +27,9 @@ sequential (DESIGN §4):
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+import threading
+from collections import OrderedDict
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -51,6 +53,13 @@ from .system import System
 INSTANTS = 3600  # default instants per cycle: 0.1° of master angle
 NODE_SPACING = math.radians(2.0)  # from nodes this close the quintic Hermite guess is within ~1e-12 of the link lengths
 SCREEN_CONDITION = DEAD_POINT_CONDITION * 1e-3  # pivot estimate above this sends an instant to the exact check
+STARTS_KEPT = 32  # assemblies remembered (a re-solve after an edit that keeps geometry and start values reuses its own)
+
+# Assembling from the rough coordinates, the mobility check and the first solved
+# state depend only on the compiled structure, the rough coordinates, the master
+# angle of the drawing and the drivers' values there; keyed by exactly those.
+_starts: OrderedDict = OrderedDict()
+_starts_lock = threading.Lock()
 
 
 @dataclass
@@ -107,11 +116,34 @@ class CycleSolver:
             speed, requested, dof, dead, self.system,
         )
 
+    def _begin(self, drawn_at: float):
+        """Assembled q (n,), whether it assembled, the DOF report, and the first state and its stop reason
+        (None, "" unless driven and assembled) — remembered by everything they depend on."""
+        system = self.system
+        guess = system.initial_guess()
+        key = (system.structure_key, guess.tobytes(), drawn_at, system.drive(np.array([drawn_at])).tobytes())
+        with _starts_lock:
+            known = _starts.get(key)
+            if known is not None:
+                _starts.move_to_end(key)
+        if known is None:
+            q0, assembled = assemble(system, guess, drawn_at)
+            dof = analyse_dof(system, q0)
+            start, reason = solve_instant(system, drawn_at, q0) if dof.driven and assembled else (None, "")
+            known = (q0, assembled, dof, start, reason)
+            with _starts_lock:
+                _starts[key] = known
+                while len(_starts) > STARTS_KEPT:
+                    _starts.popitem(last=False)
+        q0, assembled, dof, start, reason = known
+        if start is not None:  # a fresh state for this solve
+            start = replace(start, q=start.q.copy(), dq=start.dq.copy(), ddq=start.ddq.copy())
+        return q0.copy(), assembled, dof, start, reason
+
     def solve(self, theta: np.ndarray, speed: float, drawn_at: float = 0.0) -> CycleResult:
         system = self.system
         requested = theta.size
-        q0, assembled = assemble(system, system.initial_guess(), drawn_at)
-        dof = analyse_dof(system, q0)
+        q0, assembled, dof, start, reason = self._begin(drawn_at)
         if not dof.driven:
             return self._result(NOT_DRIVEN, dof.message, theta[:0], None, speed, requested, dof)
         if not assembled:
@@ -120,7 +152,6 @@ class CycleSolver:
                 " coordinates: check dimensions, points and the drivers' start values"
             )
             return self._result(NOT_ASSEMBLED, message, theta[:0], None, speed, requested, dof)
-        start, reason = solve_instant(system, drawn_at, q0)
         if reason:
             dead = self._dead_point(Stop(reason, start, drawn_at))
             return self._result(DEAD_POINT, dead.message, theta[:0], None, speed, requested, dof, dead)

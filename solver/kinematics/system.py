@@ -149,7 +149,7 @@ class System:
         self.driver_names = [d.name for d in drivers]
         bound = [(name, item, item.bind(mechanism)) for name, item in entries]
 
-        key = _structure_key(self.bodies, self.length, bound, len(drivers))
+        key = self.structure_key = _structure_key(self.bodies, self.length, bound, len(drivers))
         with _compiled_lock:
             compiled = _compiled.get(key)
             if compiled is not None:
