@@ -35,13 +35,24 @@ def interpolate(nodes: np.ndarray, q: np.ndarray, dq: np.ndarray, ddq: np.ndarra
     hh = 0.5 * h * h
     H2 = (t2 * u * u * u) * hh  # = (t² − 3t³ + 3t⁴ − t⁵)/2
     H5 = (t3 * u * u) * hh  # = (t³ − 2t⁴ + t⁵)/2
-    qa = np.take(q, k, axis=1)
-    out = np.take(q, k + 1, axis=1)
+    if k.size > 1 and (k[1:] >= k[:-1]).all():  # increasing θ: each node's values repeated over its run
+        counts = np.bincount(k, minlength=len(nodes) - 1)
+        last = len(nodes) - 1
+
+        def at(a, shift):
+            return np.repeat(a[:, shift : shift + last], counts, axis=1)
+    else:
+
+        def at(a, shift):
+            return np.take(a, k + shift, axis=1)
+
+    qa = at(q, 0)
+    out = at(q, 1)
     out -= qa
     out *= H3
     out += qa
-    out += H1 * np.take(dq, k, axis=1)
-    out += H2 * np.take(ddq, k, axis=1)
-    out += H4 * np.take(dq, k + 1, axis=1)
-    out += H5 * np.take(ddq, k + 1, axis=1)
+    out += H1 * at(dq, 0)
+    out += H2 * at(ddq, 0)
+    out += H4 * at(dq, 1)
+    out += H5 * at(ddq, 1)
     return out
