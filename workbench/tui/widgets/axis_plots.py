@@ -144,10 +144,17 @@ class AxisPlot(Widget, can_focus=False):
         return [base + extra[kind] if kind in extra else base for kind in KINDS]
 
     def _build(self, width: int, height: int) -> list[Strip]:
-        """One strip per row: runs of cells of one kind become one segment."""
+        """One strip per row: runs of cells of one kind become one segment, and a blank cell
+        joins the run before it (a space shows only the background, the same in every style),
+        so a dashed line is one segment, not one per dash."""
         self.builds += 1
         codes, kinds = draw(self.chart, width, height)
         styles = self._styles()
+        if codes.size:
+            blank = codes == ord(" ")
+            blank[:, 0] = False  # a row's first cell keeps its own kind
+            columns = np.where(blank, 0, np.arange(width))
+            kinds = np.take_along_axis(kinds, np.maximum.accumulate(columns, axis=1), axis=1)
         strips = []
         for code_row, kind_row in zip(codes, kinds):
             text = code_row.tobytes().decode("utf-32-le")
