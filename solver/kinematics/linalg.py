@@ -213,10 +213,9 @@ class DenseFactor:
         """1-norm condition number of scaled Φq per instant (inf where singular)."""
         if self._condition is None:
             with np.errstate(all="ignore"):
-                norm = np.abs(self.scaled).sum(axis=1).max(axis=1)
-                inv_norm = np.abs(self.inverse).sum(axis=1).max(axis=1)
-                cond = norm * inv_norm
-            self._condition = np.where(np.isfinite(cond), cond, np.inf)
+                cond = np.abs(self.scaled).sum(axis=1).max(axis=1) * np.abs(self.inverse).sum(axis=1).max(axis=1)
+            cond[~np.isfinite(cond)] = np.inf
+            self._condition = cond
         return self._condition
 
     def solve(self, b: np.ndarray, overwrite: bool = False) -> np.ndarray:
