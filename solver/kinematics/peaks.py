@@ -126,6 +126,14 @@ def refined_max(result, output, signal, order: int, sign: float = 1.0) -> tuple[
 
 def output_peaks(result, output) -> OutputPeaks:
     """Extremes of an output's value and its velocity, acceleration and jerk peaks over a result."""
+    try:
+        return _output_peaks(result, output)
+    finally:
+        if result.system is not None:  # its scratch memory serves the next solve (workspace.py)
+            result.system.release_workspace()
+
+
+def _output_peaks(result, output) -> OutputPeaks:
     curve = result.output(output)
     span = 2.0 * math.pi
 
