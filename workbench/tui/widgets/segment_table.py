@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 from rich.text import Text
+from textual.cache import LRUCache
+from textual.coordinate import Coordinate
 from textual.widgets import DataTable
 
 from motionlaws import Axis
@@ -10,6 +12,7 @@ from motionlaws import Axis
 from ...editing import segment_ends
 from ..format import number
 
+CELL_CACHE_SIZE = 512  # rendered cells kept by content: a few tables' worth (5 columns × ~10 rows each)
 COLUMNS = (  # (key, header) — the key says which edit a cell opens
     ("number", "#"),
     ("law", "law"),
@@ -34,6 +37,33 @@ class SegmentTable(DataTable):
     def __init__(self, **kwargs):
         super().__init__(cursor_type="cell", zebra_stripes=True, **kwargs)
         self.axis: Axis | None = None
+        self._cells_by_content: LRUCache[tuple, object] = LRUCache(CELL_CACHE_SIZE)
+        """Rendered cells by what decides their look (see `_render_cell`)."""
+
+    def _render_cell(self, row_index: int, column_index: int, base_style, width: int,
+                     cursor: bool = False, hover: bool = False):
+        """A cell as the data table renders it, rendered again only when its content, place,
+        width or style changes.
+
+        (`DataTable` renders every cell again after any cell changes: after an edit that
+        was the table's whole repaint, most of the screen update that follows the edit.)"""
+        if row_index < 0:
+            content = str(self.ordered_columns[column_index].label)
+        else:
+            value = self.get_cell_at(Coordinate(row_index, column_index))
+            content = (value.plain, str(value.style), value.justify, tuple(value.spans)) \
+                if isinstance(value, Text) else str(value)
+        key = (row_index, column_index, content, base_style, width, cursor, hover,
+               self._show_hover_cursor, self._pseudo_class_state, self.show_cursor)
+        lines = self._cells_by_content.get(key)
+        if lines is None:
+            lines = super()._render_cell(row_index, column_index, base_style, width, cursor, hover)
+            self._cells_by_content[key] = lines
+        return lines
+
+    def notify_style_update(self) -> None:
+        self._cells_by_content.clear()  # colours may have changed (theme)
+        super().notify_style_update()
 
     def on_mount(self) -> None:
         for key, label in COLUMNS:
