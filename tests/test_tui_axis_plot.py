@@ -199,3 +199,38 @@ async def test_only_plots_on_view_are_drawn(size, shown):
             app.query_one("#plots").shown = "position"
             await settle(pilot)
             assert hidden.display and hidden.builds == before + 1
+
+
+# --- an edit and its numbers reach the screen together ----------------------------------------
+
+
+async def test_an_edit_waits_for_its_numbers_then_is_painted_with_them(monkeypatch):
+    import threading
+
+    import workbench.app as app_module
+    from workbench.tui.views.axes import HOLD_S
+
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        view = app.query_one("#axes")
+        assert not view.holding
+        await edit(pilot, editing.set_span(app.project, LID, 0, 100.0))
+        assert not view.holding and view.results_for is app.project  # released when the numbers came
+
+        gate = threading.Event()
+        compute = app_module.compute_results
+        monkeypatch.setattr(app_module, "compute_results", lambda project: gate.wait(10) and compute(project))
+        try:
+            app.post_message(ProjectEdited(editing.set_span(app.project, LID, 0, 110.0), "slow numbers"))
+            await pilot.pause()
+            assert view.holding and view.results_for is not app.project
+            await pilot.pause(HOLD_S * 1.5)
+            assert not view.holding  # painted alone after HOLD_S, numbers still to come
+            assert "(computing…)" in app.query_one("#axis-bar").content.plain
+        finally:
+            gate.set()
+        await settle(pilot)
+        assert view.results_for is app.project and not view.holding
+        v = cycloidal_peak_velocity(40.0, 110.0, 120.0)  # 523.6 mm/s
+        assert f"peak {v:.4g}" in plot(app, "velocity").title

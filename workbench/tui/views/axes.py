@@ -4,6 +4,13 @@ Keys act on the segment under the cursor.  Every edit goes through a pure
 operation of `workbench.editing` (via `axes_dialogs` where something must be
 typed) and leaves as a `ProjectEdited` message; the app keeps the history
 and sends the new state back down with `show_project`.
+
+A new state and its numbers reach the screen in one update: from
+`show_project` until `show_results` brings the numbers for it (at most
+`HOLD_S`), screen updates are held (`App.batch_update`).  Painted apart,
+the edit's table would take one update and the plots and peaks another,
+and Textual paints its second update after an idle spell one to two
+frames after the first.
 """
 
 from __future__ import annotations
@@ -26,6 +33,8 @@ from ..widgets.peaks_panel import PeaksPanel
 from ..widgets.segment_table import SegmentTable
 from . import axes_dialogs as dialogs
 from .base import WorkbenchView
+
+HOLD_S = 0.1  # the longest a new state waits for its numbers before it is painted alone (s)
 
 
 class AxisBar(Static):
@@ -71,6 +80,9 @@ class AxesView(WorkbenchView):
         """True once the user picked the plot; until then a short window shows the worst quantity."""
         self._cursor_after: int | None = None
         """Row for the cursor once the next edit comes back (a moved or added segment)."""
+        self._held = None
+        """The screen-update batch held until the numbers come (None: not holding)."""
+        self._hold_timer = None
 
     def compose(self) -> ComposeResult:
         yield AxisBar(id="axis-bar")
@@ -81,6 +93,8 @@ class AxesView(WorkbenchView):
     # --- state down ---------------------------------------------------------
 
     def show_project(self, project: Project) -> None:
+        if project is not self.results_for:
+            self._hold()
         self.project = project
         names = [a.name for a in project.axes]
         if self.axis_name not in names:
@@ -90,6 +104,33 @@ class AxesView(WorkbenchView):
     def show_results(self, project: Project, results: dict[str, AxisResult]) -> None:
         self.results, self.results_for = results, project
         self._refresh_numbers()
+        if project is self.project:
+            self._release()
+
+    @property
+    def holding(self) -> bool:
+        """True while screen updates wait for the numbers of the state on view."""
+        return self._held is not None
+
+    def _hold(self) -> None:
+        """Hold screen updates until the numbers for the new state come (or `HOLD_S` passes)."""
+        if self._held is not None or not self.is_mounted:
+            return
+        self._held = self.app.batch_update()
+        self._held.__enter__()
+        self._hold_timer = self.set_timer(HOLD_S, self._release)
+
+    def _release(self) -> None:
+        """Let the screen update again (at once: the widgets changed meanwhile are painted)."""
+        if self._held is None:
+            return
+        held, self._held = self._held, None
+        self._hold_timer.stop()
+        held.__exit__(None, None, None)
+        self.screen.check_idle()
+
+    def on_unmount(self) -> None:
+        self._release()
 
     def select_axis(self, name: str) -> None:
         self.axis_name = name
