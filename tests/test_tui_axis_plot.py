@@ -234,3 +234,10 @@ async def test_an_edit_waits_for_its_numbers_then_is_painted_with_them(monkeypat
         assert view.results_for is app.project and not view.holding
         v = cycloidal_peak_velocity(40.0, 110.0, 120.0)  # 523.6 mm/s
         assert f"peak {v:.4g}" in plot(app, "velocity").title
+
+
+@pytest.mark.parametrize("value", [900.0, -900.0, 0.0, 999.0, -1000.0, 1000.0, 1200.0])
+def test_a_level_line_has_the_dots_of_a_line_stepped_across(value):
+    scale = Scale(53, 12, -1000.0, 1000.0)
+    stepped = scale.dots(np.array([0.0, 360.0]), np.full(2, value))
+    assert np.array_equal(scale.level(value), stepped)

@@ -18,7 +18,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .braille import BRAILLE_BASE, DOTS_X, DOTS_Y, braille_grid
+from .braille import BRAILLE_BASE, DOT_BITS, DOTS_X, DOTS_Y, braille_grid
 
 # what a cell shows (index into the widget's styles)
 TEXT, FRAME, TICK, BOUNDARY, LIMIT, CURVE = range(6)
@@ -111,6 +111,15 @@ class Scale:
         x, y = self.x_dots(theta[ok]), self.y_dots(values[ok])
         return braille_grid(x / DOTS_X, y / DOTS_Y, self.columns, self.rows)
 
+    def level(self, value: float) -> np.ndarray:
+        """Braille masks of a line at `value` across the whole width (what `dots` gives for a
+        horizontal line from 0 to 360°, without stepping along it)."""
+        masks = np.zeros((self.rows, self.columns), dtype=np.int64)
+        dot = int(math.floor(float(self.y_dots(value))))
+        if 0 <= dot < self.rows * DOTS_Y:
+            masks[dot // DOTS_Y, :] = DOT_BITS[dot % DOTS_Y, 0] | DOT_BITS[dot % DOTS_Y, 1]
+        return masks
+
 
 def _codes(text: str) -> np.ndarray:
     return np.frombuffer(text.encode("utf-32-le"), dtype=np.uint32)
@@ -160,8 +169,7 @@ def draw(chart: Chart | None, width: int, height: int) -> tuple[np.ndarray, np.n
 
     # limit lines, dashed, then the curve over them
     if chart.limit is not None:
-        ends = np.array([0.0, CYCLE])
-        masks = scale.dots(ends, np.full(2, chart.limit)) | scale.dots(ends, np.full(2, -chart.limit))
+        masks = scale.level(chart.limit) | scale.level(-chart.limit)
         period, drawn = LIMIT_DASH
         masks[:, np.arange(columns) % period >= drawn] = 0
         hit = masks > 0

@@ -95,6 +95,8 @@ class AxisPlot(Widget, can_focus=False):
         self._strips: list[Strip] = []
         self._built_for: tuple | None = None
         """(chart, size) the strips belong to."""
+        self._style_cache: tuple = (None, [])
+        """(the widget's base style, the styles of `KINDS` on it)."""
 
     @property
     def title(self) -> str:
@@ -119,6 +121,7 @@ class AxisPlot(Widget, can_focus=False):
 
     def notify_style_update(self) -> None:
         self._built_for = None  # theme or CSS changed: colours must be looked up again
+        self._style_cache = (None, [])
         super().notify_style_update()
 
     def render_line(self, y: int) -> Strip:
@@ -131,8 +134,14 @@ class AxisPlot(Widget, can_focus=False):
         return Strip.blank(size.width, self.rich_style)
 
     def _styles(self) -> list[Style]:
-        """Rich style of each cell kind (`axis_chart.KINDS`), on the widget's own colours."""
+        """Rich style of each cell kind (`axis_chart.KINDS`), on the widget's own colours
+        (looked up again when those change)."""
         base = self.rich_style
+        if self._style_cache[0] != base:
+            self._style_cache = (base, self._styles_on(base))
+        return self._style_cache[1]
+
+    def _styles_on(self, base: Style) -> list[Style]:
         curve = CURVE_STYLE.get(self.quantity, "")
         extra = {
             "frame": self.get_component_rich_style("axis-plot--frame", partial=True),
