@@ -1,7 +1,9 @@
 """Edit → plots and peaks on screen, measured through the running workbench (Textual pilot).
 
 One edit (segment 1's span of the lid lift, alternating 90° ↔ 100°) is sent
-to the app as a view would send it.  The clock stops at the end of the
+to the app as a view would send it; then the same edit is typed into the
+span dialog and the clock starts at Enter (the dialog closes, the screen
+under it comes back, the edit follows).  The clock stops at the end of the
 screen update (compositor pass) in which the peaks panel and every plot on
 view were painted with the new numbers — not when the numbers arrive, nor
 when a plot has only prepared its drawing.  Each axis is sampled at 3,600
@@ -45,20 +47,26 @@ LID = "lid-lift"
 
 
 class Watch:
-    """Follows one edit: when the view got its numbers and when each watched widget was painted with them."""
+    """Follows one edit: when the view got the numbers of a state newer than `before`, and
+    when each watched widget was painted with them."""
 
     def __init__(self) -> None:
-        self.edited = None
+        self.before = None
+        self.on = False
         self.t_results = 0.0
         self.pending: set[int] = set()
         self.done = asyncio.Event()
         self.t_done = 0.0
         self.cpu_done = 0.0
 
-    def start(self, edited, widgets) -> None:
-        self.edited, self.t_results, self.t_done = edited, 0.0, 0.0
+    def start(self, before, widgets) -> None:
+        self.before, self.on, self.t_results, self.t_done = before, True, 0.0, 0.0
         self.pending = {id(w) for w in widgets}
         self.done = asyncio.Event()  # in the running loop (each run has its own)
+
+    def fresh(self, axes: AxesView) -> bool:
+        """The view shows the numbers of the edited state."""
+        return self.on and axes.results_for is not self.before and axes.results_for is axes.project
 
 
 watch = Watch()
@@ -69,7 +77,7 @@ def _patch_app() -> None:
     show_results = AxesView.show_results
 
     def timed_show_results(self, project, results):
-        if project is watch.edited and not watch.t_results:
+        if watch.on and project is not watch.before and not watch.t_results:
             watch.t_results = time.perf_counter()
         show_results(self, project, results)
         for plot in self.query(AxisPlot):  # a plot whose picture did not change has nothing to paint
@@ -82,7 +90,7 @@ def _patch_app() -> None:
 
     def timed_compositor_refresh(self):
         compositor_refresh(self)
-        if watch.edited is not None and not watch.pending and not watch.done.is_set():
+        if watch.on and not watch.pending and not watch.done.is_set():
             watch.t_done = time.perf_counter()
             watch.cpu_done = time.thread_time()
             watch.done.set()
@@ -96,7 +104,7 @@ def _watch_paint(widget, fresh) -> None:
 
     def watched(crop):
         lines = render_lines(crop)
-        if watch.edited is not None and fresh():
+        if fresh():
             watch.pending.discard(id(painted_for[id(widget)]))
         return lines
 
@@ -106,8 +114,11 @@ def _watch_paint(widget, fresh) -> None:
 painted_for: dict[int, object] = {}  # id(painter) → the widget it paints for
 
 
-async def measure(size: tuple[int, int]) -> list[tuple[float, float, float]]:
-    """(edit → on screen, edit → numbers on the view, UI thread CPU) in ms for each edit after warm-up."""
+async def measure(size: tuple[int, int], dialog: bool = False) -> list[tuple[float, float, float]]:
+    """(edit → on screen, edit → numbers on the view, UI thread CPU) in ms for each edit after warm-up.
+
+    `dialog`: the edit is typed into the span dialog and the clock starts at Enter (the dialog
+    closes and the edit follows); otherwise the edit is posted as a view posts it."""
     project = load_project(preset_path("tray-lidder"))
     app = Workbench(project)
     out = []
@@ -119,17 +130,28 @@ async def measure(size: tuple[int, int]) -> list[tuple[float, float, float]]:
         plots = list(app.query(AxisPlot))
         for plot in plots:
             painted_for[id(plot)] = plot
-            _watch_paint(plot, lambda p=plot: axes.results_for is watch.edited and p.result is axes.result)
+            _watch_paint(plot, lambda p=plot: watch.fresh(axes) and p.result is axes.result)
         painted_for[id(peaks)] = peaks
-        _watch_paint(peaks, lambda: axes.results_for is watch.edited and peaks.result is axes.result)
+        _watch_paint(peaks, lambda: watch.fresh(axes) and peaks.result is axes.result)
         for i in range(WARM_UP + EDITS):
             span = 100.0 if i % 2 == 0 else 90.0
-            edited = editing.set_span(app.project, LID, 0, span)
+            if dialog:
+                app.query_one("#segments").move_cursor(row=0, column=2)
+                await pilot.press("enter")
+                await pilot.pause()
+                app.screen.query_one("#value").value = f"{span:g}"
+                await pilot.pause()
+                await asyncio.sleep(QUIET_S)
             visible = [p for p in plots if p.display and p.size.width]
-            watch.start(edited, [peaks, *visible])
+            watch.start(app.project, [peaks, *visible])
             t0, cpu0 = time.perf_counter(), time.thread_time()
-            app.post_message(ProjectEdited(edited, "bench"))
+            if dialog:
+                pressed = asyncio.create_task(pilot.press("enter"))
+            else:
+                app.post_message(ProjectEdited(editing.set_span(app.project, LID, 0, span), "bench"))
             await asyncio.wait_for(watch.done.wait(), timeout=10.0)
+            if dialog:
+                await pressed
             if i >= WARM_UP:
                 out.append(((watch.t_done - t0) * 1e3, (watch.t_results - t0) * 1e3,
                             (watch.cpu_done - cpu0) * 1e3))
@@ -137,7 +159,7 @@ async def measure(size: tuple[int, int]) -> list[tuple[float, float, float]]:
             await app.workers.wait_for_complete()
             await pilot.pause()
             await asyncio.sleep(QUIET_S)
-        watch.edited = None
+        watch.on = False
     return out
 
 
@@ -161,10 +183,12 @@ def main() -> None:
     _patch_app()
     print(f"edit → plots and peaks on screen, {POINTS_PER_CYCLE} points per axis (target {TARGET_MS:.0f} ms)")
     worker_alone()
-    for size, what in (((80, 24), "one plot"), ((120, 40), "four plots")):
+    for size, what, dialog in (((80, 24), "one plot", False), ((120, 40), "four plots", False),
+                               ((80, 24), "one plot, via the span dialog", True),
+                               ((120, 40), "four plots, via the span dialog", True)):
         edits = []
         for _ in range(runs):
-            edits += asyncio.run(measure(size))
+            edits += asyncio.run(measure(size, dialog))
         total = [t for t, _, _ in edits]
         numbers = statistics.median(n for _, n, _ in edits)
         paint = statistics.median(t - n for t, n, _ in edits)

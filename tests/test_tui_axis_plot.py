@@ -208,8 +208,10 @@ async def test_an_edit_waits_for_its_numbers_then_is_painted_with_them(monkeypat
     import threading
 
     import workbench.app as app_module
-    from workbench.tui.views.axes import HOLD_S
+    import workbench.tui.views.axes as axes_module
 
+    hold_s = 0.5  # long enough to look while it holds, whatever else the machine does
+    monkeypatch.setattr(axes_module, "HOLD_S", hold_s)
     app = Workbench(load_project(preset_path("tray-lidder")))
     async with app.run_test(size=(80, 24)) as pilot:
         await settle(pilot)
@@ -225,7 +227,7 @@ async def test_an_edit_waits_for_its_numbers_then_is_painted_with_them(monkeypat
             app.post_message(ProjectEdited(editing.set_span(app.project, LID, 0, 110.0), "slow numbers"))
             await pilot.pause()
             assert view.holding and view.results_for is not app.project
-            await pilot.pause(HOLD_S * 1.5)
+            await pilot.pause(hold_s * 1.5)
             assert not view.holding  # painted alone after HOLD_S, numbers still to come
             assert "(computing…)" in app.query_one("#axis-bar").content.plain
         finally:
@@ -241,3 +243,40 @@ def test_a_level_line_has_the_dots_of_a_line_stepped_across(value):
     scale = Scale(53, 12, -1000.0, 1000.0)
     stepped = scale.dots(np.array([0.0, 360.0]), np.full(2, value))
     assert np.array_equal(scale.level(value), stepped)
+
+
+async def test_a_dialog_closing_and_its_edit_are_painted_together(monkeypatch):
+    import threading
+
+    from textual.widgets import Input
+
+    import workbench.app as app_module
+    from workbench.tui.screens.edit_value import EditDialog
+
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    held_when_sent = []
+
+    def hook(message) -> None:
+        if isinstance(message, ProjectEdited) and not held_when_sent:
+            held_when_sent.append(app.query_one("#axes").holding)
+
+    async with app.run_test(size=(80, 24), message_hook=hook) as pilot:
+        await settle(pilot)
+        view = app.query_one("#axes")
+        gate = threading.Event()
+        compute = app_module.compute_results
+        monkeypatch.setattr(app_module, "compute_results", lambda project: gate.wait(10) and compute(project))
+        try:
+            app.query_one("#segments").move_cursor(row=0, column=2)  # segment 1's span
+            await pilot.press("enter")
+            await pilot.pause()
+            assert isinstance(app.screen, EditDialog)
+            app.screen.query_one("#value", Input).value = "100"
+            await pilot.press("enter")
+            assert not isinstance(app.screen, EditDialog)
+            assert held_when_sent == [True]  # held from the dialog's closing, before the edit went up
+        finally:
+            gate.set()
+        await settle(pilot)
+        assert not view.holding and view.results_for is app.project
+        assert app.project.axis(LID).segments[0].span == 100.0

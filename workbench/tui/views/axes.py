@@ -202,6 +202,7 @@ class AxesView(WorkbenchView):
             if project is None:
                 self._cursor_after = None
             else:
+                self._hold()  # the dialog closing and the edit reach the screen together
                 self.post_message(ProjectEdited(project, note))
 
         self.app.push_screen(screen, done)
