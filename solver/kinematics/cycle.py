@@ -22,6 +22,10 @@ sequential (DESIGN §4):
    conditioning, det sign, branch consistency between neighbours) and
    re-march, instant by instant, any stretch that fails; a failure there is
    a dead point like any other.
+
+Where a driver's derivatives may jump (its motion's breaks: a program's
+segment boundaries) the march lands on both sides of the jump (march.py),
+so both are nodes, and no branch check links two instants across it.
 """
 
 from __future__ import annotations
@@ -42,6 +46,7 @@ from .march import (
     DEAD_POINT_CONDITION,
     State,
     Stop,
+    across_breaks,
     branch_defect,
     march,
     solve_instant,
@@ -204,6 +209,7 @@ class CycleSolver:
         link_ok = branch_defect(
             system, solved.q[:, :-1], dq[:, :-1], ddq[:, :-1], solved.q[:, 1:], dq[:, 1:], ddq[:, 1:], np.diff(points)
         ) <= BRANCH_TOLERANCE
+        link_ok |= across_breaks(system, points)  # the march crossed these (both sides are nodes)
         # a point is good when it passes and so do the links on both sides; a gap when all its points are
         good = ok.copy()
         good[:-1] &= link_ok
@@ -279,7 +285,7 @@ class CycleSolver:
         if fine.size > 1:
             h = np.diff(fine)
             defect = branch_defect(system, q[:, :-1], dq[:, :-1], ddq[:, :-1], q[:, 1:], dq[:, 1:], ddq[:, 1:], h)
-            bad[1:] |= ~(defect <= BRANCH_TOLERANCE)
+            bad[1:] |= ~(defect <= BRANCH_TOLERANCE) & ~across_breaks(system, fine)
         return np.flatnonzero(bad)
 
     def _repair(self, fine, q, dq, ddq, dddq, i, start):

@@ -11,6 +11,15 @@ peak.  On a cycle of 3,600 instants the local grid spacing is 0.1°/32 ≈
 check agreement with closed forms to 1e-9).  A peak at the end of an
 unfinished cycle is taken as sampled.
 
+No local grid reaches across a break of a driver (a segment boundary of
+its program, where a derivative may jump): it stops JOIN_GAP short of a
+break on the left and starts at the break on the right, so a parabola is
+never fitted over a jump and the one-sided values at a jump are sampled
+exactly.  Samples next to a break are candidates when their trend carried
+to the break comes within PEAK_CANDIDATE of the best.  At most
+MAX_CANDIDATES (the highest) are refined: on a plateau — an output at rest
+or at constant rate — every sample ties, and each would cost a local solve.
+
 The types are motionlaws' `Peak` and `LimitCheck`, so linkage outputs report
 like axes: `Peak.at` in master degrees, values in SI per s^k.  Position,
 velocity, acceleration and jerk of a linkage driven by cam-like motion
@@ -29,11 +38,14 @@ from motionlaws.peaks import LimitCheck, Peak
 from motionlaws.program import Limits
 
 from .hermite import interpolate
+from .march import JOIN_GAP
+from .motion import breaks_between
 from .newton import derivatives, newton
 from .outputs import OutputCurve, evaluate
 
 PEAK_CANDIDATE = 0.99  # other sampled local maxima within this share of the best are refined too
 LOCAL_POINTS = 65  # dense local grid over the two sample intervals around a candidate
+MAX_CANDIDATES = 8  # sampled maxima refined per peak (on a plateau every sample ties with the best)
 QUANTITIES = ("velocity", "acceleration", "jerk")
 
 
@@ -97,19 +109,21 @@ def refined_max(result, output, signal, order: int, sign: float = 1.0) -> tuple[
     theta = result.theta
     y = sign * signal if order == 0 else np.abs(signal)
     best = float(np.max(y))
-    periodic = result.success and theta.size > 2
-    step = theta[1] - theta[0] if theta.size > 1 else 0.0
-    left, right = np.roll(y, 1), np.roll(y, -1)
-    if not periodic:
-        left[0], right[-1] = -np.inf, -np.inf
-    candidates = np.flatnonzero((y >= left) & (y >= right) & (y >= best * PEAK_CANDIDATE - 1e-300))
-    if candidates.size == 0:
-        candidates = np.array([int(np.argmax(y))])
     top = (best, float(theta[int(np.argmax(y))]))
-    for i in candidates:
+    if theta.size < 2:
+        return top
+    periodic = result.success and theta.size > 2
+    step = theta[1] - theta[0]
+    motions = result.system.motions if result.system is not None else []
+    for i in _candidates(y, theta, best, periodic, motions):
         lo, hi = theta[i] - step, theta[i] + step
         if not periodic:
             lo, hi = max(lo, theta[0]), min(hi, theta[-1])
+        for b in breaks_between(motions, lo, hi):  # stay on the law of sample i
+            if b <= theta[i]:
+                lo = b
+            else:
+                hi = min(hi, b - JOIN_GAP)
         if hi <= lo:
             continue
         local = _local(result, output, lo, hi)
@@ -122,6 +136,38 @@ def refined_max(result, output, signal, order: int, sign: float = 1.0) -> tuple[
         if value > top[0]:
             top = (value, at)
     return top
+
+
+def _candidates(y: np.ndarray, theta: np.ndarray, best: float, periodic: bool, motions) -> np.ndarray:
+    """Indices of samples worth refining, the highest first, at most MAX_CANDIDATES.
+
+    Sampled local maxima within PEAK_CANDIDATE of the best; and samples next to a
+    break whose trend (the line through them and their neighbour on the same
+    side) reaches that share at the break.
+    """
+    left, right = np.roll(y, 1), np.roll(y, -1)
+    if not periodic:
+        left[0], right[-1] = -np.inf, -np.inf
+    floor = best * PEAK_CANDIDATE - 1e-300
+    score = np.where((y >= left) & (y >= right), y, -np.inf)
+    n, turn = y.size, 2.0 * math.pi
+    end = theta[0] + turn if periodic else theta[-1]
+    breaks = breaks_between(motions, theta[0] - JOIN_GAP, end - JOIN_GAP)
+    if n > 2:
+        for b in breaks:
+            j = int(np.searchsorted(theta, b, side="left"))  # the first sample on the break's right (n: wrapped)
+            for i, inner in ((j - 1, j - 2), (j, j + 1)):  # the last sample before it, the first after
+                if not periodic and not (0 <= min(i, inner) and max(i, inner) < n):
+                    continue
+                i, inner = i % n, inner % n
+                to_break = (b - theta[i] + math.pi) % turn - math.pi  # signed, wrapped
+                apart = (theta[i] - theta[inner] + math.pi) % turn - math.pi
+                reach = y[i] + (y[i] - y[inner]) * to_break / apart if apart else y[i]
+                score[i] = max(score[i], reach)
+    candidates = np.flatnonzero(score >= floor)
+    if candidates.size == 0:
+        return np.array([int(np.argmax(y))])
+    return candidates[np.argsort(score[candidates])[::-1][:MAX_CANDIDATES]]
 
 
 def output_peaks(result, output) -> OutputPeaks:
