@@ -21,6 +21,7 @@ from scipy.optimize import minimize_scalar
 from motionlaws import Axis, Segment, compile_axis
 from solver.kinematics import DEG, BodyAngle, JointCoordinate, PointY, ProgramMotion, solve_cycle
 from solver.kinematics import peaks as peaks_module
+from solver.kinematics.joins import output_joins
 from solver.kinematics.march import JOIN_GAP
 from solver.kinematics.motion import breaks_between
 from solver.kinematics.peaks import MAX_CANDIDATES, output_peaks
@@ -137,3 +138,24 @@ def test_breaks_repeat_every_cycle_and_merge_across_motions():
     want = np.radians([-0.5 * 0 + 180.0, 0.0, 60.0, 150.0, 180.0, 360.0])
     want = np.unique(np.concatenate([np.radians([180.0]) - 2 * math.pi, np.radians([0.0, 60.0, 150.0, 180.0, 360.0])]))
     np.testing.assert_allclose(got, want[(want > -0.5) & (want <= 2 * math.pi + 0.5)], atol=1e-15)
+
+
+def test_joins_give_each_side_of_every_jump():
+    """At 0° the crank leaves rest at the constant-velocity rate 180°/120° = 1.5 rad/rad, at 120° it stops
+    dead into the cycloidal rise (zero rate at its start, cycloidal law); the slider's one-sided rates
+    there are Norton's closed form with those crank rates (per rad of master angle: ω = 1)."""
+    program = constant_velocity_crank()
+    result = solve(program)
+    crank = {round(math.degrees(j.at), 9): j for j in output_joins(result, JointCoordinate("O"))}
+    assert sorted(crank) == [0.0, 120.0, 240.0]
+    np.testing.assert_allclose(crank[0.0].left[1:], [0.0, 0.0, 0.0], atol=1e-12)
+    np.testing.assert_allclose(crank[0.0].right[1:3], [1.5, 0.0], atol=1e-12)
+    np.testing.assert_allclose(crank[120.0].left[1:3], [1.5, 0.0], atol=1e-12)
+    np.testing.assert_allclose(crank[120.0].right[1], 0.0, atol=1e-12)
+    assert crank[240.0].jump[1] == pytest.approx(0.0, abs=1e-12)
+    for join in output_joins(result, JointCoordinate("slide")):
+        theta2 = crank[round(math.degrees(join.at), 9)].right[0]
+        for side, c in ((join.left, crank[round(math.degrees(join.at), 9)].left),
+                        (join.right, crank[round(math.degrees(join.at), 9)].right)):
+            x, v, acc = norton_slider(np.array([theta2]), c[1], c[2])
+            np.testing.assert_allclose(side[:3], [x[0], v[0], acc[0]], rtol=1e-8, atol=1e-12)

@@ -10,6 +10,7 @@ from .cycle import INSTANTS, mobility, solve_cycle
 from .dof import DofReport, Motion
 from .errors import ModelError
 from .fixed import Fixed
+from .joins import OutputJoin, output_joins
 from .model import GROUND, Body, Driver, Mechanism
 from .motion import DEG, MM, ConstantSpeed, ProgramMotion
 from .outputs import OutputCurve
@@ -24,7 +25,7 @@ __all__ = [
     "Binding", "Constraint", "Coordinate",
     "BodyAngle", "JointCoordinate", "PointX", "PointY", "RelativeAngle", "SliderStroke",
     "INSTANTS", "mobility", "solve_cycle", "DofReport", "Motion",
-    "ModelError", "Fixed", "GROUND", "Body", "Driver", "Mechanism",
+    "ModelError", "Fixed", "OutputJoin", "output_joins", "GROUND", "Body", "Driver", "Mechanism",
     "DEG", "MM", "ConstantSpeed", "ProgramMotion", "OutputCurve",
     "OutputPeaks", "check_limits", "max_speed", "output_peaks",
     "Prismatic", "DEAD_POINT", "NOT_ASSEMBLED", "NOT_DRIVEN", "SOLVED", "CycleResult", "DeadPoint",

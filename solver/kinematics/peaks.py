@@ -67,8 +67,14 @@ class OutputPeaks:
 
 def _local(result, output, lo: float, hi: float) -> OutputCurve:
     """The output solved afresh on LOCAL_POINTS master angles in [lo, hi] (rad)."""
+    return solve_output_at(result, output, np.linspace(lo, hi, LOCAL_POINTS))
+
+
+def solve_output_at(result, output, theta: np.ndarray) -> OutputCurve:
+    """The output solved afresh at master angles θ (rad, any order) near a solved result: a batched
+    Newton from the Hermite interpolation of the result's instants (a Taylor step beyond its ends).
+    Instants where Newton does not converge are left out."""
     system = result.system
-    theta = np.linspace(lo, hi, LOCAL_POINTS)
     t = result.theta
     q, dq, ddq = result.q.T, result.dq.T, result.ddq.T
     if t.size > 1:
