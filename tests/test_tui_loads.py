@@ -303,3 +303,82 @@ async def test_a_failing_source_is_said_and_the_others_still_show(monkeypatch):
         await settle(pilot)
         assert "✗ NOT COMPUTED" in str(app.query_one("#loads-bar", Static).content)
         assert "singular matrix at 212°" in str(app.query_one("#loads-notes", Static).content)
+
+
+# --- the cursor's abscissa, and items of words only ---------------------------------------
+
+
+async def test_a_linkage_item_reads_at_master_angle_a_cam_item_at_cam_angle():
+    app = Workbench(load_project(preset_path("slider-crank")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("5")
+        await settle(pilot)
+        assert view(app).item.kind == "linkage driver"
+        await pilot.press("right", "right")
+        await settle(pilot)
+        assert view(app).angle == 10.0
+        assert readout(app).startswith("at master angle 10° (← →): torque at pin O ")
+        assert "cam angle" not in readout(app)
+    app = Workbench(load_project(preset_path("cam-press")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("5", "right")
+        await settle(pilot)
+        # the camshaft turns once per cycle (README, Cams): its cam angle is the master angle, and the
+        # readout above (test_readout_follows_the_force_balance) matches the axis at that master angle
+        assert view(app).item.kind == "cam follower"
+        assert readout(app).startswith("at cam angle 5° (← →): contact force ")
+
+
+def words_only_shown(app) -> bool:
+    """True when the view shows an item's words and nothing else: no plot strip, no figure table, no
+    caution, no cursor readout."""
+    return (not app.query_one("#loads-plots").display and not app.query_one(FigureTable).display
+            and not app.query_one("#loads-caution").display and not app.query_one("#loads-readout").display
+            and app.query_one("#loads-notes").has_class("-words"))
+
+
+async def test_a_linkage_without_loads_shows_its_hint_alone():
+    from workbench.tui.widgets.loads_linkage import LOADS_EXAMPLE as LINKAGE_EXAMPLE
+
+    app = Workbench(load_project(preset_path("six-bar-press")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("5")
+        await settle(pilot)
+        assert [(i.name, i.plots, i.figures) for i in view(app).items] == [("press", (), ())]
+        assert words_only_shown(app)
+        notes = str(app.query_one("#loads-notes", Static).content)
+        assert notes.startswith("This linkage has no [linkage.loads] table")
+        assert LINKAGE_EXAMPLE.format(body="crank") in notes
+        assert app.query_one("#loads-notes").content_region.y == app.query_one("#loads-bar").region.bottom + 1  # one blank row
+        assert not view(app).check_action("step", ()) and not view(app).check_action("go", ())
+        await pilot.press("right")  # no cursor: nothing moves
+        await settle(pilot)
+        assert view(app).angle == 0.0 and str(app.query_one("#loads-readout", Static).content) == ""
+
+
+async def test_stepping_from_a_plotted_item_to_words_and_back(monkeypatch):
+    def failed(project):
+        return [LoadsItem("stamp-drive", "linkage driver", False, "✗ CANNOT BE COMPUTED", (), (), (),
+                          ("the loads cannot be computed now — body crank: mass: must be above 0",))]
+
+    monkeypatch.setitem(loads_data.LOADS_SOURCES, "linkage", failed)
+    app = Workbench(load_project(preset_path("cam-press")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("5", "comma")  # back from the first cam to the last item
+        await settle(pilot)
+        assert view(app).item_name == "stamp-drive" and words_only_shown(app)
+        assert "✗ CANNOT BE COMPUTED" in str(app.query_one("#loads-bar", Static).content)
+        await pilot.press("full_stop")
+        await settle(pilot)
+        assert view(app).item_name == "stamp-cam" and not words_only_shown(app)
+        assert app.query_one("#loads-plots").display and app.query_one("#loads-plots").region.height >= 7
+        assert app.query_one("#loads-contact", AnglePlot).points_drawn > 0
+        assert "least contact force" in figures(app) and app.query_one(FigureTable).display
+        assert readout(app).startswith("at cam angle 0°")
+        await pilot.press("right")
+        await settle(pilot)
+        assert view(app).angle == 5.0

@@ -1,12 +1,15 @@
 """The Loads view: what loads the drive over the cycle, with figures and the caution that goes with them.
 
-Each registered loads source (`widgets.loads_data`) gives items: for now the
+Each registered loads source (`widgets.loads_data`) gives items: the
 spring-closed cam followers (`[cam.loads]`, `widgets.loads_cam`) — contact
-force and camshaft torque against cam angle, and their figures.  Linkage
-drive torques come in through the same hook (`register_loads_source
-("linkage", …)` in `widgets/loads_linkage.py`); until then the view says so
-when the project has a linkage.  Items are computed in a worker from the
-project as edited.  Keys: `,` `.` pick the item, `←` `→` move the cursor.
+force and camshaft torque against cam angle — and the linkage drivers
+(`[linkage.loads]`, `widgets.loads_linkage`) — drive torque or force and
+speed against master angle.  A cam turns once per machine cycle, so its cam
+angle is the master angle; the cursor readout names the one the item is
+plotted against (`abscissa`).  An item with nothing to plot (a linkage
+without loads, a part that cannot be computed now) shows its words alone.
+Items are computed in a worker from the project as edited.  Keys: `,` `.`
+pick the item, `←` `→` move the cursor.
 """
 
 from __future__ import annotations
@@ -43,6 +46,8 @@ MIN_PLOT_ROWS = 7  # least rows of the plots; they take what the figures leave
 PLOT_SHARE = 0.6  # but no more than this share of the view
 BODY_ROWS = 12  # rows the figures and notes need before an item is known
 CAUTION_ROWS = 3  # the rigid-body caution at 80 columns
+CAM_ANGLE_KINDS = ("cam follower",)  # item kinds plotted against their cam's angle
+MASTER_ANGLE = "master angle"  # what every other item is plotted against
 
 LOADS_EXAMPLE = """\
 [cam.loads]                    # under a [[cam]]: a spring-closed follower
@@ -50,6 +55,17 @@ follower_mass = 2.4            # kg
 spring_rate = 8.0              # N/mm
 preload = 180.0                # N, on the base circle
 margin = 50.0                  # N, least contact force wanted"""
+
+
+def abscissa(item: LoadsItem) -> str:
+    """What an item's plots and readout run against: "cam angle" for a cam follower (the cam
+    turns once per cycle, so it is the master angle by another name), else "master angle"."""
+    return "cam angle" if item.kind in CAM_ANGLE_KINDS else MASTER_ANGLE
+
+
+def plotted(item: LoadsItem | None) -> bool:
+    """True when the item has curves (and so a cursor); an item of words only has none."""
+    return item is not None and bool(item.plots)
 
 
 class LoadsBar(Static):
@@ -118,6 +134,7 @@ class LoadsView(WorkbenchView):
     #loads-body { height: 1fr; padding: 0 1; scrollbar-size-vertical: 1; }
     #loads-body:focus { background: $boost; }
     #loads-caution, #loads-readout, #loads-notes, #loads-pending { height: auto; }
+    #loads-notes.-words { padding-top: 1; }
     #loads-empty { padding: 1 2; display: none; }
     """
 
@@ -130,7 +147,7 @@ class LoadsView(WorkbenchView):
                 tooltip=f"Cursor {FINE_STEP:g}° later"),
         Binding("shift+left", f"step({-FINE_STEP:g})", f"-{FINE_STEP:g}°", show=False, priority=True,
                 tooltip=f"Cursor {FINE_STEP:g}° earlier"),
-        Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Cursor to cam angle 0°"),
+        Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Cursor back to 0° of the cycle"),
         Binding("comma", "cycle(-1)", "Prev", key_display=",", show=False, tooltip="Show the previous loaded part"),
         Binding("full_stop", "cycle(1)", "Next", key_display=".", show=False, tooltip="Show the next loaded part"),
     ]
@@ -156,7 +173,7 @@ class LoadsView(WorkbenchView):
         self.item_name: str | None = None
         """The item on view."""
         self.angle = 0.0
-        """Cursor cam angle, deg."""
+        """Cursor angle, deg (the item's `abscissa`: master angle, or cam angle for a cam)."""
         self._pending_cycle = 0
 
     def compose(self) -> ComposeResult:
@@ -216,6 +233,8 @@ class LoadsView(WorkbenchView):
         if not h:
             return
         item = self.item
+        if item is not None and not item.plots:
+            return  # the strip is hidden: the words take the view
         body = BODY_ROWS if item is None else len(item.figures) + 1 + CAUTION_ROWS + 1 + len(item.notes)
         body += len(unshown_parts(self.project)) if self.project is not None else 0
         rows = min(h - 1 - body, int(h * PLOT_SHARE))
@@ -223,13 +242,15 @@ class LoadsView(WorkbenchView):
 
     def _refresh_all(self) -> None:
         has = bool(self.items)
-        for name in ("#loads-bar", "#loads-plots", "#loads-body"):
+        item = self.item
+        for name in ("#loads-bar", "#loads-body"):
             self.query_one(name).display = has
+        self.query_one("#loads-plots").display = plotted(item)  # no empty strip beside words alone
         self.query_one("#loads-empty").display = not has
         self.refresh_bindings()
         if not has:
             self.query_one("#loads-empty-text", Static).update(nothing_text(self.project))
-        item = self.item
+        self.query_one(FigureTable).display = item is not None and bool(item.figures)
         self._refresh_bar()
         self._size_plots()
         plots = list(self.query(AnglePlot))
@@ -239,9 +260,14 @@ class LoadsView(WorkbenchView):
             plot.show_spec(spec, self.angle)
         self.query_one(FigureTable).show(item)
         caution = Text(f"! {item.caution}", style=WARN_STYLE) if item is not None and item.caution else Text("")
-        self.query_one("#loads-caution", Static).update(caution)
-        notes = Text("\n".join(item.notes) if item is not None else "", style="dim")
-        self.query_one("#loads-notes", Static).update(notes)
+        box = self.query_one("#loads-caution", Static)
+        box.update(caution)
+        box.display = bool(caution.plain)
+        words_only = item is not None and not item.plots and not item.figures  # the notes are the message
+        notes = Text("\n".join(item.notes) if item is not None else "", style="" if words_only else "dim")
+        box = self.query_one("#loads-notes", Static)
+        box.update(notes)
+        box.set_class(words_only, "-words")
         pending = pending_lines(self.project)
         box = self.query_one("#loads-pending", Static)
         box.update(Text("\n").join(pending))
@@ -251,11 +277,13 @@ class LoadsView(WorkbenchView):
     def _refresh_readout(self) -> None:
         item = self.item
         text = Text()
-        if item is not None and item.readout is not None:
-            text.append(f"at cam angle {degrees(self.angle)}", style="bold")
+        if plotted(item) and item.readout is not None:
+            text.append(f"at {abscissa(item)} {degrees(self.angle)}", style="bold")
             text.append(" (← →): ", style="dim")
             text.append(item.readout(self.angle))
-        show_text(self.query_one("#loads-readout", Static), text)
+        box = self.query_one("#loads-readout", Static)
+        box.display = bool(text.plain)
+        show_text(box, text)
 
     def _refresh_bar(self) -> None:
         bar = self.query_one(LoadsBar)
@@ -291,7 +319,7 @@ class LoadsView(WorkbenchView):
     def check_action(self, action: str, parameters) -> bool | None:
         """Cursor and picker keys only while there is something to show (or on its way)."""
         if action in ("step", "go"):
-            return bool(self.items)
+            return plotted(self.item)
         if action == "cycle":
             return bool(self.items) or self.items_for is not self.project
         return True
