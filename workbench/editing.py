@@ -351,3 +351,8 @@ def law_table() -> list[tuple[str, tuple[float, float, float] | None]]:
         law = LAWS.get(law_id)
         out.append((law_id, law.coefficients if law is not None and law.moves else None))
     return out
+
+
+# The edits that reach into cams and linkages (a cam's sizes, an axis renamed with what follows it)
+# live in `editing_parts`, which imports this module: imported last, so either may be imported first.
+from .editing_parts import axis_users, cam_sizes, rename_axis, set_cam_size  # noqa: E402,F401
