@@ -1,7 +1,6 @@
 """A linkage's loads over one cycle at the machine speed, in the file's units.
 
-`study_loads(project, spec)` solves the cycle (linkagesolve.py, in
-stretches), hands the `[linkage.loads]` in SI to `solver.loads` and reads
+`study_loads(project, spec)` solves the cycle (linkagesolve.py), hands the `[linkage.loads]` in SI to `solver.loads` and reads
 back, per driver, the effort it supplies (N·m for an angle, N for a travel),
 its peak and where, RMS, peak speed and power, and — with a servo — the
 figures at the motor against the motor's limits; per joint, the peak force

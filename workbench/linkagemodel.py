@@ -26,6 +26,7 @@ from solver.kinematics import (
     PointX,
     PointY,
     Prismatic,
+    ProgramMotion,
     Revolute,
     TransmissionAngle,
 )
@@ -74,15 +75,10 @@ def _coordinate(target: Target, spec: LinkageSpec):
 SNAP = 1e-11  # deg: a master angle this close to a 9-decimal value is that value (rad → deg rounding)
 
 
-@dataclass(frozen=True)
-class AxisMotion:
-    """An axis program as a driver motion, d(θ) = offset + scale·s(θ), like solver.kinematics'
-    `ProgramMotion`, but with θ (rad) turned back into the degrees the user meant: radians of
-    30° come back as 29.999999999999996°, which would read the segment before a boundary."""
-
-    program: object
-    scale: float
-    offset: float
+class AxisMotion(ProgramMotion):
+    """An axis program as a driver motion, d(θ) = offset + scale·s(θ): solver.kinematics'
+    `ProgramMotion` (its segment boundaries are its breaks), with θ (rad) turned back into
+    the degrees the user meant: radians of 30° come back as 29.999999999999996°."""
 
     def __call__(self, theta):
         deg = np.degrees(theta)

@@ -1,10 +1,10 @@
 """A linkage over one machine cycle: its outputs' peaks against their limits.
 
 Values here are in the file's units (mm or deg, per s^k), master angles in
-degrees.  The cycle is solved by linkagesolve.py (in stretches between the
-segment boundaries of the axes the drivers follow); each stretch is searched
-for peaks on its own, so that no search runs across a join, and the jumps at
-the joins are read from the two sides.  A velocity jump means infinite
+degrees.  The cycle is solved in one go (linkagesolve.py); the solver's
+peak search never runs across a segment boundary of a driver's axis, and
+the jumps at those boundaries are read from their two sides
+(solver.kinematics.output_joins).  A velocity jump means infinite
 acceleration and jerk, an acceleration jump infinite jerk, as for an axis.
 A transmission angle turns back where the lines pass 90° or fall parallel:
 its rate flips sign there, a velocity jump of its own.
@@ -13,25 +13,22 @@ its rate flips sign there, a velocity jump of its own.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 
 import numpy as np
 
 from motionlaws import Limits
 from motionlaws.peaks import LimitCheck, Peak
 from motionlaws.peaksearch import TIE
-from solver.kinematics import INSTANTS, SOLVED, TransmissionAngle
-from solver.kinematics.peaks import PEAK_CANDIDATE, refined_max
+from solver.kinematics import INSTANTS, SOLVED, TransmissionAngle, output_joins
+from solver.kinematics.peaks import refined_max
 
 from .linkagefile import LinkageSpec
 from .linkagesolve import FULL_TURN, LinkageSolution, solve_linkage
 
 QUANTITIES = ("velocity", "acceleration", "jerk")
 JUMP_SHARE = 1e-6  # a jump at a cut below this share of the output's largest |derivative| counts as none
-STRETCH = "stretch"  # status of a stretch's own result: part of a cycle, so its ends are not joined
 RIGHT_ANGLE = 0.5 * math.pi
-MAX_CANDIDATES = 8  # sampled maxima refined per peak: on a plateau (a constant-velocity stretch) every
-#                     sample is within PEAK_CANDIDATE of the best, and each would get its own local solve
 STILL = 1e-9  # per rad^k, in units of the linkage's size (lengths) or rad: a signal this small does not move
 
 
@@ -72,26 +69,6 @@ def _scale(unit: str) -> float:
     return 1e3 if unit == "mm" else 180.0 / math.pi
 
 
-def _views(solution: LinkageSolution):
-    """(view, stretch) pairs to search for peaks: the whole cycle, or each stretch not at rest."""
-    if not solution.pieces:
-        return [(solution.result, None)]
-    return [(replace(p.result, status=STRETCH), p.stretch) for p in solution.pieces if not p.stretch.rest]
-
-
-def _ends(solution: LinkageSolution, output) -> list[tuple[float, np.ndarray, np.ndarray]]:
-    """Per stretch: (start deg, values at its start, values at its end), each (g, g', g'', g''') per rad^k."""
-    out = []
-    for piece in solution.pieces:
-        curve = piece.result.output(output)
-        rows = np.array([curve.value, curve.d1, curve.d2, curve.d3])
-        first, last = rows[:, 0].copy(), rows[:, -1].copy()
-        if piece.stretch.rest:
-            first[1:] = last[1:] = 0.0
-        out.append((piece.stretch.start, first, last))
-    return out
-
-
 def _folds(curve, output) -> list[tuple[float, float, float]]:
     """(master deg, jump of μ' per rad, μ there in rad) where a transmission angle μ turns back.
 
@@ -130,27 +107,13 @@ def _first_max(items):
 
 def _refined(view, output, signal: np.ndarray, order: int, sign: float, still: float) -> tuple[float, float]:
     """(max of sign·value (order 0) or of |derivative|, master deg): the solver's refined search
-    (solver.kinematics.peaks.refined_max) on at most MAX_CANDIDATES sampled maxima.
-
-    A signal that does not move (a point on a straight guide, a slider's angle) is taken as
-    sampled: its "maxima" would be rounding noise.
-    """
+    (solver.kinematics.peaks.refined_max).  A signal that does not move (a point on a straight
+    guide, a slider's angle) is taken as sampled: its "maxima" would be rounding noise."""
     y = sign * signal if order == 0 else np.abs(signal)
     spread = np.ptp(signal) if order == 0 else np.max(np.abs(signal))
     k = int(np.argmax(y))
     if spread <= still:
         return float(y[k]), math.degrees(view.theta[k]) % FULL_TURN
-    periodic = view.success and y.size > 2
-    left, right = np.roll(y, 1), np.roll(y, -1)
-    if not periodic:
-        left[0], right[-1] = -np.inf, -np.inf
-    candidates = np.flatnonzero((y >= left) & (y >= right) & (y >= y[k] * PEAK_CANDIDATE))
-    if candidates.size > MAX_CANDIDATES:  # keep the best few; mask the rest below every candidate
-        keep = candidates[np.argsort(y[candidates])[::-1][:MAX_CANDIDATES]]
-        floor = np.min(y) - 1.0
-        masked = np.full_like(y, floor)
-        masked[keep] = y[keep]
-        signal = sign * masked if order == 0 else masked
     value, at = refined_max(view, output, signal, order, sign)
     return value, math.degrees(at) % FULL_TURN
 
@@ -173,30 +136,18 @@ def study_output(solution: LinkageSolution, name: str, limits: Limits) -> Output
     k_unit = _scale(unit)
     speed = solution.result.speed
     omega = 2.0 * math.pi * speed / 60.0
-    highs, lows, peaks = [], [], {q: [] for q in QUANTITIES}
-    largest = np.zeros(3)  # largest |g'|, |g''|, |g'''| per rad^k seen
-    folds = []
     still = STILL * solution.built.mechanism.length_scale()
-    for view, _ in _views(solution):
-        high, low, found, curve = _output_peaks(view, output, still)
-        highs.append(high)
-        lows.append(low)
-        for q in QUANTITIES:
-            peaks[q].append(found[q])
-        largest = np.maximum(largest, [np.max(np.abs(d)) for d in (curve.d1, curve.d2, curve.d3)])
-        folds += _folds(curve, output)
+    high, low, found, curve = _output_peaks(solution.result, output, still)
+    highs, lows, peaks = [high], [low], {q: [found[q]] for q in QUANTITIES}
+    largest = np.array([np.max(np.abs(d)) for d in (curve.d1, curve.d2, curve.d3)])  # per rad^k
+    folds = _folds(curve, output)
     jumps = []
-    ends = _ends(solution, output)
-    for k, (at, first, _) in enumerate(ends):
-        before = ends[k - 1][2]
-        dv, da = first[1] - before[1], first[2] - before[2]
+    for join in output_joins(solution.result, output):
+        dv, da = join.jump[1], join.jump[2]
         dv = dv if abs(dv) > JUMP_SHARE * largest[0] else 0.0
         da = da if abs(da) > JUMP_SHARE * largest[1] else 0.0
         if dv or da:
-            jumps.append(OutputJump(at, dv * omega * k_unit, da * omega**2 * k_unit))
-        if solution.pieces[k].stretch.rest:
-            highs.append((float(first[0]), at))
-            lows.append((-float(first[0]), at))
+            jumps.append(OutputJump(math.degrees(join.at) % FULL_TURN, dv * omega * k_unit, da * omega**2 * k_unit))
     for at, _, corner in folds:  # a fold is an extreme of μ, exactly 0° or 90°
         (highs if corner else lows).append((corner if corner else -0.0, at))
     if isinstance(output, TransmissionAngle):  # a parabola through a fold may overshoot it
@@ -258,8 +209,7 @@ class LinkageStudy:
             return None
         if r.dead_point is not None:
             return math.degrees(r.dead_point.at) % FULL_TURN
-        pieces = self.solution.pieces
-        return pieces[-1].stretch.start if pieces else 0.0
+        return 0.0  # not assembled where it is drawn
 
     @property
     def ok(self) -> bool:

@@ -35,6 +35,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from motionlaws.peaks import LimitCheck, Peak
+from motionlaws.peaksearch import TIE
 from motionlaws.program import Limits
 
 from .hermite import interpolate
@@ -46,6 +47,7 @@ from .outputs import OutputCurve, evaluate
 PEAK_CANDIDATE = 0.99  # other sampled local maxima within this share of the best are refined too
 LOCAL_POINTS = 65  # dense local grid over the two sample intervals around a candidate
 MAX_CANDIDATES = 8  # sampled maxima refined per peak (on a plateau every sample ties with the best)
+# Peaks within motionlaws' TIE of each other are equal; the first in the cycle is reported, as for an axis.
 QUANTITIES = ("velocity", "acceleration", "jerk")
 
 
@@ -115,9 +117,9 @@ def refined_max(result, output, signal, order: int, sign: float = 1.0) -> tuple[
     theta = result.theta
     y = sign * signal if order == 0 else np.abs(signal)
     best = float(np.max(y))
-    top = (best, float(theta[int(np.argmax(y))]))
+    found = [(best, float(theta[int(np.argmax(y))]))]
     if theta.size < 2:
-        return top
+        return found[0]
     periodic = result.success and theta.size > 2
     step = theta[1] - theta[0]
     motions = result.system.motions if result.system is not None else []
@@ -139,9 +141,11 @@ def refined_max(result, output, signal, order: int, sign: float = 1.0) -> tuple[
         ly = sign * values if order == 0 else np.abs(values)
         k = int(np.argmax(ly))
         at, value = _parabola(local.theta, ly, k)
-        if value > top[0]:
-            top = (value, at)
-    return top
+        found.append((value, at))
+    best = max(value for value, _ in found)
+    ties = [(value, at) for value, at in found if value >= best - TIE * abs(best)]
+    turn = 2.0 * math.pi
+    return min(ties, key=lambda f: (f[1] - theta[0]) % turn if periodic else f[1])  # the first of equal peaks
 
 
 def _candidates(y: np.ndarray, theta: np.ndarray, best: float, periodic: bool, motions) -> np.ndarray:

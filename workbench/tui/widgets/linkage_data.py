@@ -27,7 +27,7 @@ from solver.kinematics import NOT_ASSEMBLED, NOT_DRIVEN, SOLVED, mobility
 
 from ...linkagefile import LinkageSpec, describe, target_unit
 from ...linkagemodel import LinkageFault
-from ...linkagesolve import solve_linkage, stretches
+from ...linkagesolve import cuts, solve_linkage
 from ...linkagestudy import LinkageStudy, study_linkage
 from .linkage_geometry import (
     GUIDE_MARGIN,
@@ -235,7 +235,7 @@ def _still(project, spec: LinkageSpec, study: LinkageStudy | None):
 def cuts_of(project, spec: LinkageSpec) -> tuple[float, ...]:
     """Master angles (deg) where an axis a driver follows changes segment (0° left out)."""
     try:
-        return tuple(s.start for s in stretches(project, spec) if s.start > 0.0)
+        return tuple(c for c in cuts(project, spec) if c > 0.0)
     except KeyError:  # a driver's axis is gone: the study says so
         return ()
 
