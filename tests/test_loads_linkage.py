@@ -217,6 +217,23 @@ def test_driven_slider_effort_is_a_force_equal_to_mass_times_acceleration():
     close(drive_efforts_by_power(result, loading)["servo"], drive.effort, 1e-10, "virtual power")
 
 
+def test_a_force_that_jumps_peaks_at_its_one_sided_value():
+    """Harmonic rise and return of the driven slider: its acceleration h·π²/(2β²)·cos(πx)·ω² (harmonic
+    law, Ca = π²/2, any cam handbook) jumps from and to rest at both ends of each, so the force
+    F = m d̈ (Newton's second law) peaks right at a jump: the rise's one-sided value, no more."""
+    axis = Axis("slider", (Segment("dwell", 60.0), Segment("harmonic", 90.0, 120.0), Segment("dwell", 30.0),
+                           Segment("harmonic", 180.0, 90.0)), unit="mm", start=90.0)
+    model = slider_crank(A, B, C, 1.2, driver="slider", motion=ProgramMotion(compile_axis(axis), scale=MM))
+    result = solve_cycle(model, SPEED)
+    assert result.success, result.message
+    m = 1.7
+    drive = linkage_loads(result, LinkageLoading({"slider": BodyMass(m)})).drives["servo"]
+    h, beta = 0.030, math.radians(90.0)
+    want = m * h * math.pi**2 / (2 * beta**2) * OMEGA**2
+    assert drive.peak.value == pytest.approx(want, rel=1e-9)
+    assert min(abs(drive.peak.at - 60.0), abs(drive.peak.at - 150.0)) < 1e-6
+
+
 def test_loading_errors_name_the_item_and_key():
     model, _ = masses_four_bar()
     result = solve_cycle(model, SPEED)

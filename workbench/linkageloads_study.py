@@ -32,6 +32,7 @@ from motionlaws.peaks import LimitCheck, Peak
 from solver.kinematics import INSTANTS, SOLVED, JointCoordinate, System
 from solver.loads import DriveLoad, JointReaction, LinkageLoads, LoadsError, ServoSizing, linkage_loads, servo_sizing
 from solver.kinematics.outputs import CoordinateProbe
+from solver.kinematics.peaks import cycle_breaks
 from solver.loads.linkage_peaks import refined_peak
 from solver.loads.linkage_power import velocity_coefficients
 
@@ -165,8 +166,8 @@ def _scale(unit: str) -> float:
     return MM if unit == "mm" else DEG
 
 
-def _peak_of(theta, values, periodic) -> Peak:
-    value, at = refined_peak(theta, values, periodic)
+def _peak_of(theta, values, periodic, breaks) -> Peak:
+    value, at = refined_peak(theta, values, periodic, breaks=breaks)
     return Peak(value, math.degrees(at % (2 * math.pi) if periodic else at))
 
 
@@ -232,16 +233,18 @@ def motor_result(project, spec: LinkageSpec, result):
     return replace(result, system=System(mechanism))
 
 
-def _sampled(item):
-    """A DriveLoad or JointReaction without its dense re-solve (peaks from the samples)."""
-    return replace(item, local=None)
+def _sampled(item, breaks):
+    """A DriveLoad or JointReaction without its dense re-solve (peaks from the samples), jumping
+    where the solved motion's drivers change law (`breaks`, rad; the swapped system has none)."""
+    return replace(item, local=None, breaks=breaks)
 
 
 def motor_drive(result, drive: DriveLoad, joint: str) -> DriveLoad:
     """The effort at `joint` from a `motor_result` (its multipliers), with the joint's own position,
     rate and acceleration from the solved motion (the swapped system's drive is not the motion)."""
     curve = result.output(JointCoordinate(joint))
-    return replace(drive, position=curve.value, rate=curve.velocity, acceleration=curve.acceleration, local=None)
+    return replace(drive, position=curve.value, rate=curve.velocity, acceleration=curve.acceleration, local=None,
+                   breaks=cycle_breaks(result))
 
 
 def _servo(spec: LinkageSpec, drive: DriveLoad, servo, target: Target) -> ServoStudy:
@@ -268,7 +271,7 @@ def _driver(spec: LinkageSpec, drive: DriveLoad, target: Target) -> DriverLoads:
     servo = spec.loads.servo(drive.name)
     return DriverLoads(
         drive.name, effort_words(spec, target), unit, drive.effort_unit, drive.peak, drive.rms, rate,
-        _peak_of(drive.theta, drive.power, drive.periodic), drive,
+        _peak_of(drive.theta, drive.power, drive.periodic, drive.breaks), drive,
         None if servo is None else _servo(spec, drive, servo, target),
     )
 
@@ -306,9 +309,9 @@ def solved_loads(project, spec: LinkageSpec, result) -> SolvedLoads:
         if target is not d.target:
             drive = motor_drive(result, drive, target.of)
         elif moved:
-            drive = _sampled(drive)
+            drive = _sampled(drive, cycle_breaks(result))
         drives[d.name], targets[d.name] = drive, target
-    reactions = {j: (_sampled(r) if moved else r) for j, r in loads.reactions.items()}
+    reactions = {j: (_sampled(r, cycle_breaks(result)) if moved else r) for j, r in loads.reactions.items()}
     return SolvedLoads(loads, drives, reactions, targets)
 
 

@@ -11,14 +11,12 @@ jerk, as for an axis.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 import numpy as np
 
 from .march import JOIN_GAP
-from .motion import breaks_between
-from .peaks import solve_output_at
+from .peaks import cycle_breaks, solve_output_at
 
 
 @dataclass(frozen=True)
@@ -47,11 +45,9 @@ def output_joins(result, output) -> tuple[OutputJoin, ...]:
 
 
 def _output_joins(result, output) -> tuple[OutputJoin, ...]:
-    t = result.theta
-    end = t[0] + 2.0 * math.pi if result.success else t[-1]
-    breaks = breaks_between(result.system.motions, t[0] - JOIN_GAP, end - JOIN_GAP)
+    breaks = cycle_breaks(result)
     if not result.success:
-        breaks = breaks[breaks - JOIN_GAP >= t[0]]
+        breaks = breaks[breaks - JOIN_GAP >= result.theta[0]]
     if not breaks.size:
         return ()
     angles = np.concatenate([breaks - JOIN_GAP, breaks])

@@ -122,16 +122,12 @@ def refined_max(result, output, signal, order: int, sign: float = 1.0) -> tuple[
         return found[0]
     periodic = result.success and theta.size > 2
     step = theta[1] - theta[0]
-    motions = result.system.motions if result.system is not None else []
-    for i in _candidates(y, theta, best, periodic, motions):
+    breaks = cycle_breaks(result)
+    for i in _candidates(y, theta, best, periodic, breaks):
         lo, hi = theta[i] - step, theta[i] + step
         if not periodic:
             lo, hi = max(lo, theta[0]), min(hi, theta[-1])
-        for b in breaks_between(motions, lo, hi):  # stay on the law of sample i
-            if b <= theta[i]:
-                lo = b
-            else:
-                hi = min(hi, b - JOIN_GAP)
+        lo, hi = on_one_law(theta[i], lo, hi, breaks, periodic)
         if hi <= lo:
             continue
         local = _local(result, output, lo, hi)
@@ -148,33 +144,57 @@ def refined_max(result, output, signal, order: int, sign: float = 1.0) -> tuple[
     return min(ties, key=lambda f: (f[1] - theta[0]) % turn if periodic else f[1])  # the first of equal peaks
 
 
-def _candidates(y: np.ndarray, theta: np.ndarray, best: float, periodic: bool, motions) -> np.ndarray:
-    """Indices of samples worth refining, the highest first, at most MAX_CANDIDATES.
+def cycle_breaks(result) -> np.ndarray:
+    """Master angles (rad, increasing) where a driver of the result may jump: over one cycle from its
+    first instant when it solved a whole cycle, else within its solved instants."""
+    theta = result.theta
+    if result.system is None or theta.size == 0:
+        return np.empty(0)
+    end = theta[0] + 2.0 * math.pi if result.success else theta[-1]
+    return breaks_between(result.system.motions, theta[0] - JOIN_GAP, end - JOIN_GAP)
 
-    Sampled local maxima within PEAK_CANDIDATE of the best; and samples next to a
-    break whose trend (the line through them and their neighbour on the same
-    side) reaches that share at the break.
-    """
+
+def on_one_law(center: float, lo: float, hi: float, breaks: np.ndarray, periodic: bool) -> tuple[float, float]:
+    """[lo, hi] (rad) narrowed to the law `center` lies on: from a break at or before it, to JOIN_GAP
+    short of the next (`breaks` of one cycle, repeated a cycle either side when periodic)."""
+    if periodic and breaks.size:
+        breaks = np.concatenate([breaks - 2.0 * math.pi, breaks, breaks + 2.0 * math.pi])
+    for b in breaks[(breaks > lo) & (breaks <= hi)]:
+        if b <= center:
+            lo = b
+        else:
+            hi = min(hi, b - JOIN_GAP)
+    return lo, hi
+
+
+def break_reach(y: np.ndarray, theta: np.ndarray, periodic: bool, breaks: np.ndarray) -> np.ndarray:
+    """(n,) for the samples next to a break: the line through each and its neighbour on the same
+    side, carried to the break (its one-sided value, to first order); −inf elsewhere."""
+    n, turn = y.size, 2.0 * math.pi
+    reach = np.full(n, -np.inf)
+    if n < 3:
+        return reach
+    for b in breaks:
+        j = int(np.searchsorted(theta, b, side="left"))  # the first sample on the break's right (n: wrapped)
+        for i, inner in ((j - 1, j - 2), (j, j + 1)):  # the last sample before it, the first after
+            if not periodic and not (0 <= min(i, inner) and max(i, inner) < n):
+                continue
+            i, inner = i % n, inner % n
+            to_break = (b - theta[i] + math.pi) % turn - math.pi  # signed, wrapped
+            apart = (theta[i] - theta[inner] + math.pi) % turn - math.pi
+            value = y[i] + (y[i] - y[inner]) * to_break / apart if apart else y[i]
+            reach[i] = max(reach[i], value)
+    return reach
+
+
+def _candidates(y: np.ndarray, theta: np.ndarray, best: float, periodic: bool, breaks: np.ndarray) -> np.ndarray:
+    """Indices of samples worth refining, the highest first, at most MAX_CANDIDATES: sampled local
+    maxima within PEAK_CANDIDATE of the best, and samples next to a break whose `break_reach` is."""
     left, right = np.roll(y, 1), np.roll(y, -1)
     if not periodic:
         left[0], right[-1] = -np.inf, -np.inf
-    floor = best * PEAK_CANDIDATE - 1e-300
-    score = np.where((y >= left) & (y >= right), y, -np.inf)
-    n, turn = y.size, 2.0 * math.pi
-    end = theta[0] + turn if periodic else theta[-1]
-    breaks = breaks_between(motions, theta[0] - JOIN_GAP, end - JOIN_GAP)
-    if n > 2:
-        for b in breaks:
-            j = int(np.searchsorted(theta, b, side="left"))  # the first sample on the break's right (n: wrapped)
-            for i, inner in ((j - 1, j - 2), (j, j + 1)):  # the last sample before it, the first after
-                if not periodic and not (0 <= min(i, inner) and max(i, inner) < n):
-                    continue
-                i, inner = i % n, inner % n
-                to_break = (b - theta[i] + math.pi) % turn - math.pi  # signed, wrapped
-                apart = (theta[i] - theta[inner] + math.pi) % turn - math.pi
-                reach = y[i] + (y[i] - y[inner]) * to_break / apart if apart else y[i]
-                score[i] = max(score[i], reach)
-    candidates = np.flatnonzero(score >= floor)
+    score = np.maximum(np.where((y >= left) & (y >= right), y, -np.inf), break_reach(y, theta, periodic, breaks))
+    candidates = np.flatnonzero(score >= best * PEAK_CANDIDATE - 1e-300)
     if candidates.size == 0:
         return np.array([int(np.argmax(y))])
     return candidates[np.argsort(score[candidates])[::-1][:MAX_CANDIDATES]]

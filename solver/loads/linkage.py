@@ -29,6 +29,7 @@ from typing import Callable
 import numpy as np
 
 from motionlaws.peaks import Peak
+from solver.kinematics.peaks import cycle_breaks
 
 from .linkage_dynamics import body_motion, dense_jacobian, generalized_forces, multipliers
 from .linkage_model import LinkageLoading, LoadsError
@@ -68,6 +69,7 @@ class DriveLoad:
     speed: float
     periodic: bool
     local: Callable | None = field(default=None, repr=False)
+    breaks: np.ndarray = field(default_factory=lambda: np.empty(0), repr=False)  # rad: where it may jump
 
     @property
     def power(self) -> np.ndarray:
@@ -78,7 +80,7 @@ class DriveLoad:
     def peak(self) -> Peak:
         """Largest |effort| (refined beyond the samples) and where (master deg)."""
         local = None if self.local is None else (lambda lo, hi: self.local(lo, hi)[:2])
-        value, at = refined_peak(self.theta, self.effort, self.periodic, local)
+        value, at = refined_peak(self.theta, self.effort, self.periodic, local, self.breaks)
         return Peak(value, degrees_at(at, self.periodic))
 
     @property
@@ -107,6 +109,7 @@ class JointReaction:
     speed: float
     periodic: bool
     local: Callable | None = field(default=None, repr=False)
+    breaks: np.ndarray = field(default_factory=lambda: np.empty(0), repr=False)  # rad: where it may jump
 
     @property
     def magnitude(self) -> np.ndarray:
@@ -130,14 +133,14 @@ class JointReaction:
     def peak(self) -> Peak:
         """Largest |force| (refined) and where (master deg)."""
         local = None if self.local is None else (lambda lo, hi: self._local(lo, hi, "force"))
-        value, at = refined_peak(self.theta, self.magnitude, self.periodic, local)
+        value, at = refined_peak(self.theta, self.magnitude, self.periodic, local, self.breaks)
         return Peak(value, degrees_at(at, self.periodic))
 
     @cached_property
     def peak_couple(self) -> Peak:
         """Largest |couple| (refined) and where (master deg); zero for a pin."""
         local = None if self.local is None else (lambda lo, hi: self._local(lo, hi, "couple"))
-        value, at = refined_peak(self.theta, self.couple, self.periodic, local)
+        value, at = refined_peak(self.theta, self.couple, self.periodic, local, self.breaks)
         return Peak(value, degrees_at(at, self.periodic))
 
     def _local(self, lo, hi, what):
@@ -183,6 +186,7 @@ class Kinetostatics:
         self.drivers = list(system.driver_names)
         self.units = [mechanism.drivers[d].coordinate.resolve(mechanism).UNIT for d in self.drivers]
         self.periodic = is_periodic(result.theta, result.success)
+        self.breaks = cycle_breaks(result)  # where a driver's law changes: loads may jump there
         self.parts = self.evaluate(result.theta, result.q, result.dq, result.ddq)
         self._local: dict[tuple[float, float], LoadParts] = {}
 
@@ -223,7 +227,7 @@ class Kinetostatics:
             drives[name] = DriveLoad(
                 name, self.units[k], EFFORT_UNITS[self.units[k]], p.theta, mix(p.effort[:, k]),
                 p.motion[0, k].copy(), p.motion[1, k] * math.sqrt(w2), p.motion[2, k] * w2,
-                float(speed), self.periodic, local_drive,
+                float(speed), self.periodic, local_drive, self.breaks,
             )
         reactions_ = {}
         for k, info in enumerate(self.joints):
@@ -233,7 +237,7 @@ class Kinetostatics:
 
             reactions_[info.name] = JointReaction(
                 info.name, info.kind, info.body_i, info.body_j, p.theta, mix(p.force[:, k]),
-                mix(p.couple[:, k]), p.point[k], float(speed), self.periodic, local_joint,
+                mix(p.couple[:, k]), p.point[k], float(speed), self.periodic, local_joint, self.breaks,
             )
         return LinkageLoads(p.theta, float(speed), self.result.success, drives, reactions_,
                             mix(p.lam).T, tuple(self.system.row_names), self)

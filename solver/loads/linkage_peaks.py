@@ -13,8 +13,12 @@ neighbours gives the peak.
 Accuracy: on a 3,600-instant cycle the dense spacing is 0.1°/32, and for a
 smooth peak the parabola's value error is of order (spacing)³·|f'''|/|f|,
 below 1e-9 relative (the tests check 1e-9 against closed forms).  Where a
-load jumps (a motion law whose acceleration jumps), the peak is the larger
-one-sided value, found within one dense spacing of the jump.  Curves that
+load may jump (`breaks`: a driver's segment boundaries, where a motion law's
+acceleration may jump) no local grid and no parabola reaches across: the
+grid stops JOIN_GAP short of the break on its left and starts at it on its
+right, so the peak at a jump is the larger one-sided value, sampled there;
+samples next to a break are candidates when their trend carried to it
+comes within PEAK_CANDIDATE of the best (solver.kinematics.peaks).  Curves that
 come without a re-solve (`local` None) take the parabola through the
 sampled neighbours instead: value error of order h³·|f'''| with h the
 sample spacing (about 1e-7 relative for a curve with a few harmonics at
@@ -29,6 +33,7 @@ import numpy as np
 
 from solver.kinematics.hermite import interpolate
 from solver.kinematics.newton import derivatives, newton
+from solver.kinematics.peaks import break_reach, on_one_law
 
 PEAK_CANDIDATE = 0.99  # other sampled local maxima within this share of the best are refined too
 MAX_CANDIDATES = 8  # at most this many of the highest candidates are refined (ripple on a plateau)
@@ -76,12 +81,15 @@ def parabola_vertex(x: np.ndarray, y: np.ndarray, k: int) -> tuple[float, float]
     return float(x[k] + shift * h), float(y1 - 0.25 * (y0 - y2) * shift)
 
 
-def refined_peak(theta: np.ndarray, values: np.ndarray, periodic: bool, local=None) -> tuple[float, float]:
+def refined_peak(theta: np.ndarray, values: np.ndarray, periodic: bool, local=None,
+                 breaks: np.ndarray | None = None) -> tuple[float, float]:
     """(max |values|, master angle in rad) refined beyond the samples.
 
     `periodic`: the samples cover one cycle (the last neighbours the first).
     `local(lo, hi)` -> (θ dense, values dense) re-evaluates the curve on a
     dense grid; without it a parabola through the sampled neighbours is used.
+    `breaks`: master angles (rad, over the samples' cycle) where the curve may
+    jump (solver.kinematics.peaks.cycle_breaks of the result); nothing is fitted across one.
     """
     y = np.abs(np.asarray(values, dtype=float))
     n = y.size
@@ -91,13 +99,15 @@ def refined_peak(theta: np.ndarray, values: np.ndarray, periodic: bool, local=No
     top = (float(y[best]), float(theta[best]))
     if n < 3:
         return top
+    breaks = np.empty(0) if breaks is None else np.asarray(breaks, dtype=float)
     left, right = np.roll(y, 1), np.roll(y, -1)
     if not periodic:
         left[0], right[-1] = -np.inf, -np.inf
     # local maxima near the best; a plateau (equal neighbours on both sides) is its own peak
     cap = (y >= left) & (y >= right) & ((y > left) | (y > right))
-    candidates = np.flatnonzero(cap & (y >= top[0] * PEAK_CANDIDATE))
-    candidates = candidates[np.argsort(-y[candidates], kind="stable")][:MAX_CANDIDATES]
+    score = np.maximum(np.where(cap, y, -np.inf), break_reach(y, theta, periodic, breaks))
+    candidates = np.flatnonzero(score >= top[0] * PEAK_CANDIDATE)
+    candidates = candidates[np.argsort(-score[candidates], kind="stable")][:MAX_CANDIDATES]
     for i in candidates:
         lo_i, hi_i = i - 1, i + 1
         if periodic:
@@ -105,12 +115,17 @@ def refined_peak(theta: np.ndarray, values: np.ndarray, periodic: bool, local=No
             hi = theta[hi_i % n] + (FULL_TURN if hi_i >= n else 0.0)
         else:
             lo, hi = theta[max(lo_i, 0)], theta[min(hi_i, n - 1)]
+        narrow = on_one_law(theta[i], lo, hi, breaks, periodic)
         if local is not None:
-            lt, lv = local(lo, hi)
+            if narrow[1] <= narrow[0]:
+                continue
+            lt, lv = local(*narrow)
             if lt.size < 3:
                 continue
             ly = np.abs(lv)
             at, value = parabola_vertex(lt, ly, int(np.argmax(ly)))
+        elif narrow != (lo, hi):  # a jump among the neighbours: the sample stands
+            at, value = float(theta[i]), float(y[i])
         else:
             at, value = _sampled_vertex(theta, y, i, lo, hi, periodic)
         if value > top[0]:

@@ -147,8 +147,8 @@ def _figures(drive: DriveLoad, gearing: Gearing, torque, speed) -> ServoFigures:
             return t, motor_curves(e, r, a, gearing)[1]
 
     periodic = drive.periodic
-    t_val, t_at = refined_peak(drive.theta, torque, periodic, local_t)
-    s_val, s_at = refined_peak(drive.theta, speed, periodic, local_s)
+    t_val, t_at = refined_peak(drive.theta, torque, periodic, local_t, drive.breaks)
+    s_val, s_at = refined_peak(drive.theta, speed, periodic, local_s, drive.breaks)
     direct = gearing.ratio is None
     torque_unit = drive.effort_unit if direct else "N·m"
     speed_unit = ("rad/s" if drive.unit == "rad" else "m/s") if direct else "rad/s"
