@@ -22,6 +22,7 @@ import numpy as np
 
 from .base import LENGTH
 from .errors import ModelError
+from .instant import InstantKinds
 from .linalg import PLAN_SAMPLES, PLAN_SEED, EliminationPlan
 
 SLOT_COLUMNS = 3  # x, y, φ per body
@@ -62,7 +63,7 @@ COMPILED_FIELDS = (
     "row_names", "row_units", "m", "first_driver_row", "groups", "row_scale", "col_scale", "_template",
     "_active", "_affine_rows", "_affine_matrix", "_affine_offset", "_affine_gamma", "_affine_eta",
     "_plan", "slots", "slot_entries", "slot_rows", "slot_cols", "_fixed_slots", "_fixed_values",
-    "_fixed_dirty", "_fixed_dirty_values",
+    "_fixed_dirty", "_fixed_dirty_values", "_instant",
 )
 
 
@@ -125,6 +126,8 @@ class Compiling:
         if self.m == self.n and self.n:
             self._plan = self._learn_plan()
             self._layout(self._plan)
+        self._instant = None  # set before the check below, which evaluates both ways
+        self._instant = InstantKinds.of(self)
 
     def _group(self, kind, items, index) -> Group:
         bindings = [b for _, _, b, _ in items]

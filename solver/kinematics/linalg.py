@@ -25,9 +25,11 @@ check.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
+from scipy.linalg import lapack
 
 PLAN_SAMPLES = 3  # random configurations used to learn the sparsity and constant entries
 PLAN_SEED = 7  # fixed, so a mechanism always gets the same plan
@@ -222,6 +224,73 @@ class DenseFactor:
         """x (n, N) with Φq x = b (m, N), per instant (`overwrite` is accepted for symmetry; b is kept)."""
         x = np.einsum("kij,jk->ik", self.inverse, b * self.row_scale)
         return x * self.col_scale
+
+
+class InstantFactor:
+    """Scaled Φq of one instant factored by LAPACK's LU (getrf): the lean path of a march step.
+
+    The interface of `DenseFactor` for N = 1 (arrays (1,) for the sign and
+    the condition, solutions (n, 1)), and `solve_list` on plain lists,
+    without numpy's stacked-linalg wrappers, which cost several times the
+    factorization of a small matrix.  The inverse, for the exact 1-norm
+    condition number, is formed on first use only.
+    """
+
+    __slots__ = ("scaled", "rows", "cols", "lu", "piv", "singular", "_det_sign", "_condition")
+
+    def __init__(self, scaled: np.ndarray, row_scale: list, col_scale: list):
+        """`scaled` (n, n): Φq with rows and columns scaled (kept); the scales as lists."""
+        self.scaled = scaled
+        self.rows = row_scale
+        self.cols = col_scale
+        self.lu, self.piv, info = _getrf(scaled)
+        self.singular = info != 0  # info > 0: an exactly zero pivot; LAPACK's solves would divide by it
+
+    @property
+    def det_sign(self) -> np.ndarray:
+        """Sign of det Φq, (1,) (0 where exactly singular): signs of U's pivots and of the row exchanges."""
+        try:
+            return self._det_sign
+        except AttributeError:
+            pass
+        diagonal = self.lu.diagonal().tolist()
+        if self.singular or 0.0 in diagonal:
+            sign = 0.0
+        else:
+            flips = sum(v < 0.0 for v in diagonal) + sum(p != i for i, p in enumerate(self.piv.tolist()))
+            sign = -1.0 if flips % 2 else 1.0
+        self._det_sign = np.array([sign])
+        return self._det_sign
+
+    @property
+    def condition(self) -> np.ndarray:
+        """1-norm condition number of scaled Φq, (1,) (inf where singular)."""
+        try:
+            return self._condition
+        except AttributeError:
+            pass
+        cond = math.inf
+        if not self.singular:
+            inverse = _getri(self.lu, self.piv)[0]
+            cond = float(np.abs(self.scaled).sum(axis=0).max()) * float(np.abs(inverse).sum(axis=0).max())
+            if not math.isfinite(cond):
+                cond = math.inf
+        self._condition = np.array([cond])
+        return self._condition
+
+    def solve_list(self, b: list) -> list:
+        """x (list of n) with Φq x = b (list of m)."""
+        if self.singular:
+            return [math.nan] * len(self.cols)
+        x = _getrs(self.lu, self.piv, np.array([v * r for v, r in zip(b, self.rows)]), overwrite_b=1)[0]
+        return [v * c for v, c in zip(x.tolist(), self.cols)]
+
+    def solve(self, b: np.ndarray, overwrite: bool = False) -> np.ndarray:
+        """x (n, 1) with Φq x = b (m, 1) or (m,)."""
+        return np.array(self.solve_list(b.reshape(-1).tolist()))[:, None]
+
+
+_getrf, _getrs, _getri = lapack.get_lapack_funcs(("getrf", "getrs", "getri"), (np.empty(1),))
 
 
 class SparseFactor:

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .linalg import factor
+from .linalg import InstantFactor, factor
 
 POSITION_TOLERANCE = 1e-10  # scaled step: 1e-11 m on a 0.1 m linkage, far below any workshop tolerance
 RESIDUAL_TOLERANCE = 1e-10  # scaled ‖Φ‖: gaps in joints of the same size
@@ -49,6 +49,9 @@ def newton(
     which costs nothing extra in array operations.  `tolerance` applies to
     the scaled step and the scaled residual alike.
     """
+    lean = system.lean_instant if q.shape[1] == 1 else None
+    if lean is not None:
+        return _newton_instant(system, lean, q, drive, max_iterations, tolerance)
     q = q.copy()
     converged = np.zeros(q.shape[1], dtype=bool)
     F = None
@@ -82,9 +85,47 @@ def newton(
     return Solved(q, converged, F, max_iterations)
 
 
+def _newton_instant(system, lean, q: np.ndarray, drive: np.ndarray, max_iterations: int, tolerance: float) -> Solved:
+    """`newton` at one instant q (n, 1) on the lean path (instant.py, linalg.InstantFactor): the same
+    iterations, numbers and tests, on plain lists and a dense scaled Φq."""
+    at = q[:, 0].tolist()
+    values = drive[0, :, 0].tolist()
+    rows, cols = lean.row_scale, lean.col_scale
+    residual_tolerance = max(tolerance, RESIDUAL_TOLERANCE)
+    done = False
+    for iteration in range(1, max_iterations + 1):
+        res, scaled = lean.residual_scaled_jacobian(at, values)
+        F = InstantFactor(scaled, rows, cols)
+        step = F.solve_list([-v for v in res])
+        finite = all(map(math.isfinite, step))
+        size = max([abs(v / c) for v, c in zip(step, cols)]) if finite else math.nan
+        done = size <= tolerance and max([abs(v * r) for v, r in zip(res, rows)]) <= residual_tolerance
+        if finite:
+            at = [a + b for a, b in zip(at, step)]
+        if done:
+            break
+    return Solved(np.array(at)[:, None], np.array([done]), F, iteration)
+
+
+def _derivatives_instant(system, lean, solved: Solved, drive: np.ndarray, orders: int):
+    """`derivatives` at one instant on the lean path: the same solves on plain lists."""
+    F = solved.factor
+    d = drive[:, :, 0].tolist()
+    at = solved.q[:, 0].tolist()
+    dq = F.solve_list([0.0] * lean.first_driver_row + d[1])
+    ddq = F.solve_list(lean.gamma_list(at, dq, d[2]))
+    out = [np.array(dq)[:, None], np.array(ddq)[:, None]]
+    if orders == 3:
+        out.append(np.array(F.solve_list(lean.eta_list(at, dq, ddq, d[3])))[:, None])
+    return tuple(out)
+
+
 def derivatives(system, solved: Solved, drive: np.ndarray, orders: int = 3):
     """q', q'', q''' (each (n, N), per rad^k of master angle) with the factored Φq; the first `orders` (2 or 3)."""
     F, q = solved.factor, solved.q
+    lean = system.lean_instant if q.shape[1] == 1 else None
+    if lean is not None and isinstance(F, InstantFactor):
+        return _derivatives_instant(system, lean, solved, drive, orders)
     dq = F.solve(system.velocity_rhs(drive), overwrite=True)
     ddq = F.solve(system.gamma(q, dq, drive), overwrite=True)
     if orders == 2:

@@ -172,8 +172,16 @@ class System(Compiling, PoseBuffers):
         out[self.first_driver_row :] = drive[1]
         return out
 
-    def gamma(self, q, dq, drive) -> np.ndarray:
-        """γ (m, N) at q, q' (n, N); Φq q'' = γ."""
+    @property
+    def lean_instant(self):
+        """The lean evaluator of one instant (instant.py: square Φq, every kind on floats), or None."""
+        return self._instant
+
+    def gamma(self, q, dq, drive, batched: bool = False) -> np.ndarray:
+        """γ (m, N) at q, q' (n, N); Φq q'' = γ.  One instant takes the lean path unless `batched`."""
+        if q.shape[1] == 1 and self._instant is not None and not batched:
+            self._kept = None
+            return self._instant.gamma(q, dq, drive)
         arrays, rates = self._poses(q, reuse=True), self._rates(dq)
         out = np.empty((self.m, q.shape[1]))
         if self._affine_rows is not None:
@@ -187,13 +195,17 @@ class System(Compiling, PoseBuffers):
         out[self.first_driver_row :] += drive[2]
         return out
 
-    def eta(self, q, dq, ddq, drive, after_gamma: bool = False) -> np.ndarray:
+    def eta(self, q, dq, ddq, drive, after_gamma: bool = False, batched: bool = False) -> np.ndarray:
         """η (m, N) at q, q', q'' (n, N), so that Φq times the third derivative of q is η.
 
         With `after_gamma`, the poses and rates gathered by the `gamma` call
         just before (which must have had the same q and first derivative) are
-        used again, rotations included.
+        used again, rotations included.  One instant takes the lean path
+        unless `batched`.
         """
+        if q.shape[1] == 1 and self._instant is not None and not batched:
+            self._kept = None
+            return self._instant.eta(q, dq, ddq, drive)
         kept = self._kept if after_gamma else None
         if kept is None:
             arrays, rates = self._poses(q, reuse=True), self._rates(dq)
