@@ -31,12 +31,14 @@ import math
 
 import numpy as np
 
+from motionlaws.peaksearch import TIE
 from solver.kinematics.hermite import interpolate
 from solver.kinematics.newton import derivatives, newton
 from solver.kinematics.peaks import break_reach, on_one_law
 
 PEAK_CANDIDATE = 0.99  # other sampled local maxima within this share of the best are refined too
 MAX_CANDIDATES = 8  # at most this many of the highest candidates are refined (ripple on a plateau)
+# Peaks within motionlaws' TIE of each other are equal; the first in the cycle is reported, as for an axis.
 LOCAL_POINTS = 65  # dense local grid over the two sample intervals around a candidate
 FULL_TURN = 2.0 * math.pi  # rad of master angle per machine cycle
 PERIODIC_GAP = 1.5  # a closing gap up to this many sample spacings still counts as a whole cycle
@@ -99,6 +101,7 @@ def refined_peak(theta: np.ndarray, values: np.ndarray, periodic: bool, local=No
     top = (float(y[best]), float(theta[best]))
     if n < 3:
         return top
+    found = [top]
     breaks = np.empty(0) if breaks is None else np.asarray(breaks, dtype=float)
     left, right = np.roll(y, 1), np.roll(y, -1)
     if not periodic:
@@ -128,9 +131,10 @@ def refined_peak(theta: np.ndarray, values: np.ndarray, periodic: bool, local=No
             at, value = float(theta[i]), float(y[i])
         else:
             at, value = _sampled_vertex(theta, y, i, lo, hi, periodic)
-        if value > top[0]:
-            top = (value, at)
-    return top
+        found.append((value, at))
+    most = max(value for value, _ in found)
+    ties = [(value, at) for value, at in found if value >= most - TIE * abs(most)]
+    return min(ties, key=lambda f: (f[1] - theta[0]) % FULL_TURN if periodic else f[1])  # the first of equal peaks
 
 
 def _sampled_vertex(theta, y, i, lo, hi, periodic) -> tuple[float, float]:
