@@ -50,6 +50,17 @@ def constant_velocity_crank():
     return compile_axis(axis)
 
 
+def late_constant_velocity_crank():
+    """Rest, then a constant-velocity half turn from 100°: radians(100°) is one rounding step above the
+    1000th instant of a 3,600-instant cycle, which the program reads on the new segment."""
+    axis = Axis(
+        "crank",
+        (Segment("dwell", 100.0), Segment("constant-velocity", 120.0, 180.0), Segment("cycloidal", 140.0, 360.0)),
+        unit="deg", start=0.0, index=360.0,
+    )
+    return compile_axis(axis)
+
+
 def crank_rates(program, theta):
     """Crank angle (rad) and its time derivatives (rad/s^k) from the program at master angles θ (rad)."""
     s, d1, d2, d3 = program.master(np.degrees(theta))
@@ -60,7 +71,7 @@ def solve(program):
     return solve_cycle(slider_crank(A, B, C, 0.0, motion=ProgramMotion(program, scale=DEG)), SPEED)
 
 
-@pytest.mark.parametrize("make", [dwell_harmonic_crank, constant_velocity_crank])
+@pytest.mark.parametrize("make", [dwell_harmonic_crank, constant_velocity_crank, late_constant_velocity_crank])
 def test_one_solve_follows_every_jump_of_the_driver(make):
     """No stretch of rest and no derivative jump is taken for a branch jump; every instant is the closed form."""
     program = make()

@@ -35,7 +35,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .linalg import DenseFactor
-from .motion import breaks_between
+from .motion import ON_BREAK, breaks_between
 from .newton import POSITION_TOLERANCE, STEP_ITERATIONS, derivatives, newton
 
 COARSE_STEP = math.radians(45.0)  # longest continuation step (fewest Newton iterations per cycle in tests); shorter where checks ask
@@ -113,15 +113,16 @@ def branch_defect(system, q_a, dq_a, ddq_a, q_b, dq_b, ddq_b, h):
 
 
 def across_breaks(system, theta: np.ndarray) -> np.ndarray:
-    """For each link theta[i] → theta[i+1] (increasing, rad): True where a break lies in (theta[i], theta[i+1]]."""
+    """For each link theta[i] → theta[i+1] (increasing, rad): True where it spans a break or ends on
+    one (within ON_BREAK: such an instant may read either side's law)."""
+    out = np.zeros(max(theta.size - 1, 0), dtype=bool)
     if theta.size < 2:
-        return np.zeros(0, dtype=bool)
-    breaks = breaks_between(system.motions, float(theta[0]), float(theta[-1]))
-    if not breaks.size:
-        return np.zeros(theta.size - 1, dtype=bool)
-    where = np.searchsorted(theta, breaks, side="left")  # the first instant at or after each break
-    out = np.zeros(theta.size - 1, dtype=bool)
-    out[where[where >= 1] - 1] = True
+        return out
+    breaks = breaks_between(system.motions, float(theta[0]) - ON_BREAK, float(theta[-1]) + ON_BREAK)
+    for b in breaks:
+        first = int(np.searchsorted(theta, b - ON_BREAK, side="left"))  # instants first..last-1 are on b
+        last = int(np.searchsorted(theta, b + ON_BREAK, side="right"))
+        out[max(first - 1, 0) : min(last, out.size)] = True
     return out
 
 
@@ -157,18 +158,19 @@ def cross(system, state: State, theta: float, tolerance: float = POSITION_TOLERA
 
 def _waypoints(theta: float, target: float, breaks: np.ndarray):
     """(angle, crossing) stops on the way from θ to a target: each break passed is reached on its near
-    side and crossed to its far side (JOIN_GAP apart); the target itself last."""
+    side and crossed to its far side (JOIN_GAP apart; the target itself when it lies on the break);
+    the target last.  An angle within ON_BREAK of a break is on it, on the break's right-hand law."""
     out = []
     if target > theta:
-        for b in breaks[(breaks > theta) & (breaks <= target)]:
+        for b in breaks[(breaks - ON_BREAK > theta) & (breaks - ON_BREAK <= target)]:
             if b - JOIN_GAP > theta:
                 out.append((b - JOIN_GAP, False))
-            out.append((b, True))
+            out.append((target if target <= b + ON_BREAK else b, True))
     elif target < theta:
-        for b in breaks[(breaks > target) & (breaks <= theta)][::-1]:
-            if b < theta:
+        for b in breaks[(breaks - ON_BREAK > target) & (breaks - ON_BREAK <= theta)][::-1]:
+            if theta > b + ON_BREAK:
                 out.append((b, False))
-            out.append((b - JOIN_GAP, True))
+            out.append((target if target >= b - JOIN_GAP else b - JOIN_GAP, True))
     if not out or out[-1][0] != target:
         out.append((target, False))
     return out

@@ -28,6 +28,8 @@ MM = 1e-3  # m per mm: the scale for an axis in mm
 DEG = math.pi / 180.0  # rad per degree: the scale for an axis in degrees
 TURN = 2.0 * math.pi  # rad of master angle per machine cycle
 BREAK_MERGE = 1e-12  # rad: breaks of different motions this close are one (the same boundary in degrees)
+ON_BREAK = 1e-10  # rad: an angle this close to a break is on it — programs put angles a hair below a segment
+#                   start onto it (30° back from radians is 29.999999999999996°)
 
 
 @dataclass(frozen=True)

@@ -40,7 +40,7 @@ from motionlaws.program import Limits
 
 from .hermite import interpolate
 from .march import JOIN_GAP
-from .motion import breaks_between
+from .motion import ON_BREAK, breaks_between
 from .newton import derivatives, newton
 from .outputs import OutputCurve, evaluate
 
@@ -160,7 +160,7 @@ def on_one_law(center: float, lo: float, hi: float, breaks: np.ndarray, periodic
     if periodic and breaks.size:
         breaks = np.concatenate([breaks - 2.0 * math.pi, breaks, breaks + 2.0 * math.pi])
     for b in breaks[(breaks > lo) & (breaks <= hi)]:
-        if b <= center:
+        if b <= center + ON_BREAK:  # center on or after the break: on its right-hand law
             lo = b
         else:
             hi = min(hi, b - JOIN_GAP)
@@ -175,7 +175,7 @@ def break_reach(y: np.ndarray, theta: np.ndarray, periodic: bool, breaks: np.nda
     if n < 3:
         return reach
     for b in breaks:
-        j = int(np.searchsorted(theta, b, side="left"))  # the first sample on the break's right (n: wrapped)
+        j = int(np.searchsorted(theta, b - ON_BREAK, side="left"))  # the first sample on its right (n: wrapped)
         for i, inner in ((j - 1, j - 2), (j, j + 1)):  # the last sample before it, the first after
             if not periodic and not (0 <= min(i, inner) and max(i, inner) < n):
                 continue
