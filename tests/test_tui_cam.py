@@ -26,16 +26,18 @@ from solver.cam import Cam, OscillatingRoller, TranslatingRoller, Turning, analy
 from workbench.app import Workbench
 from workbench.axisreport import fmt
 from workbench.cli import main as cli_main
+from workbench.editing import set_to
 from workbench.presets import preset_path
 from workbench.projectfile import load_project, loads_project
+from workbench.tui.messages import ProjectEdited
 from workbench.tui.screens.confirm import ChoiceDialog
 from workbench.tui.screens.edit_value import EditDialog
 from workbench.tui.screens.path_prompt import PathDialog
-from workbench.tui.views.cam import CamView, example_text
+from workbench.tui.views.cam import CamView
+from workbench.tui.widgets.cam_empty import example_text
 from workbench.tui.widgets.cam_drawing import CORNER_MARK, TROUBLE_MARK, CamDrawing, Raster
 from workbench.tui.widgets.cam_plots import AnglePlot, runs
 from workbench.tui.widgets.cam_verdicts import CamVerdicts
-from workbench.tui.widgets.segment_table import SegmentTable
 
 SIZE = (100, 30)
 STAMP = dict(prime=0.060, roller=0.012, offset=0.006)  # presets/cam-press.toml, [[cam]] "stamp-cam", in m
@@ -299,14 +301,12 @@ async def test_editing_the_axis_changes_the_cam(press_file):
         before = rows(app)["pressure angle"]["value"]
         await pilot.press("1")
         await settle(pilot)
-        app.query_one(SegmentTable).move_cursor(row=1, column=3)  # segment 2 (poly345 down): its end
-        await pilot.press("enter")
-        await pilot.pause()
-        assert isinstance(app.screen, EditDialog)
-        app.screen.query_one("#value", Input).value = "30"
-        await pilot.press("enter")
+        # segment 2 (poly345 down) to end at 30 mm, as the Axes view sends any edit up (the cell
+        # editing itself is the Axes view's tests' business)
+        edited = set_to(app.project, "stamp", 1, 30.0)
+        app.query_one("#axes").post_message(ProjectEdited(edited, "end position of segment 2"))
         await settle(pilot)
-        assert app.project.axis("stamp").segments[1].to == 30.0
+        assert app.project is edited and app.project.axis("stamp").segments[1].to == 30.0
         await pilot.press("4")
         await settle(pilot)
         a = analyse(stamp_cam(app.project))  # the edited project, solved directly
@@ -321,6 +321,161 @@ async def test_editing_the_axis_changes_the_cam(press_file):
         await settle(pilot)
         assert rows(app)["pressure angle"]["value"] == before
     assert press_file.read_text() == disk  # nothing written: the view showed the edited project
+
+
+# --- the follower's sizes, edited in the Cam view ----------------------------------------
+
+
+async def open_size(pilot, key: str) -> EditDialog:
+    """`s` in the Cam view, then the size's key in the list: the value dialog."""
+    await pilot.press("s")
+    await pilot.pause()
+    assert isinstance(pilot.app.screen, ChoiceDialog)
+    await pilot.press(key)
+    await pilot.pause()
+    assert isinstance(pilot.app.screen, EditDialog)
+    return pilot.app.screen
+
+
+async def type_value(pilot, text: str) -> None:
+    pilot.app.screen.query_one("#value", Input).value = text
+    await pilot.pause()
+
+
+async def test_an_offset_typed_in_the_cam_view_reaches_the_geometry_and_the_file(press_file):
+    app = Workbench(load_project(press_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("4")
+        await settle(pilot)
+        await pilot.press("s")  # the list names every size of the follower with its value
+        await pilot.pause()
+        assert [(k, w) for k, w, _ in app.screen.answers] == [("a", "prime_radius"), ("b", "roller_radius"),
+                                                               ("c", "offset")]
+        assert "6 mm" in app.screen.answers[2][2]
+        await pilot.press("escape")
+        await pilot.pause()
+        dialog = await open_size(pilot, "c")
+        assert dialog.query_one("#value", Input).value == "6"
+        await type_value(pilot, "-4 mm")
+        assert dialog.error is None
+        assert "offset 6 mm → -4 mm" in str(dialog.query_one("#feedback", Static).content)
+        await pilot.press("enter")
+        await settle(pilot)
+        assert dict(app.project.parts["cam"][0].sizes)["offset"] == -4.0
+        assert app.status_text == "cam stamp-cam: offset 6 mm → -4 mm" and app.history.can_undo
+        assert view(app).entry.study.cam.follower.offset == pytest.approx(-0.004)
+        view(app).action_go(160.0)
+        await pilot.press("shift+right", "shift+right")
+        await settle(pilot)
+        program = app.project.programs["stamp"]
+        s, s1, _, _ = (float(np.atleast_1d(v)[0]) for v in program.master(np.array([162.0])))
+        e, rp = -4.0, 60.0  # mm: the textbook form with the new offset
+        phi = math.degrees(math.atan((s1 - e) / (s + math.sqrt(rp * rp - e * e))))
+        assert number_after(readout(app), "pressure angle") == pytest.approx(phi, abs=0.051)
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+    text = press_file.read_text()
+    changed = [(a, b) for a, b in zip(preset_path("cam-press").read_text().splitlines(), text.splitlines()) if a != b]
+    assert len(text.splitlines()) == len(preset_path("cam-press").read_text().splitlines())
+    assert [b for _, b in changed] == ["offset = -4.0                # mm, to the side that eases the down stroke"]
+    assert dict(load_project(press_file).parts["cam"][0].sizes)["offset"] == -4.0
+
+
+async def test_a_size_the_cam_cannot_take_is_refused_in_the_dialog(press_file):
+    app = Workbench(load_project(press_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("4")
+        await settle(pilot)
+        before = app.project
+        dialog = await open_size(pilot, "b")
+        await type_value(pilot, "70")
+        assert dialog.error == ("roller_radius = 70 mm: roller_radius must be smaller than prime_radius "
+                                "(the base circle would vanish) — with prime_radius 60 mm, offset 6 mm")
+        assert str(dialog.query_one("#feedback", Static).content) == f"✗ {dialog.error}"
+        await pilot.press("enter")  # refused: the dialog stays, the model is unchanged
+        await pilot.pause()
+        assert app.screen is dialog and app.project is before
+        await type_value(pilot, "")
+        assert dialog.error == "roller_radius: type a number"  # a roller follower needs its roller
+        await pilot.press("escape")
+        await settle(pilot)
+        assert app.project is before and not app.history.can_undo and not app.history.modified
+
+
+async def test_a_size_edit_is_undone_in_one_step_and_an_optional_one_can_go(press_file):
+    app = Workbench(load_project(press_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("4")
+        await settle(pilot)
+        await open_size(pilot, "b")
+        await type_value(pilot, "15")
+        await pilot.press("enter")
+        await settle(pilot)
+        # base circle = prime circle − roller radius (definition)
+        assert view(app).entry.study.cam.follower.base_radius == pytest.approx(0.045)
+        undercut = rows(app)["undercut"]
+        assert undercut["limit"] == "> 15 mm roller"
+        await pilot.press("ctrl+z")
+        await settle(pilot)
+        assert dict(app.project.parts["cam"][0].sizes)["roller_radius"] == 12.0 and not app.history.modified
+        assert rows(app)["undercut"]["limit"] == "> 12 mm roller"
+        await pilot.press("full_stop", "full_stop")  # the stripper's flat face: face_width is optional
+        await settle(pilot)
+        dialog = await open_size(pilot, "c")
+        await type_value(pilot, "")
+        assert dialog.error is None
+        await pilot.press("enter")
+        await settle(pilot)
+        assert app.project.parts["cam"][2].size("face_width") is None
+        assert "face width" not in rows(app)
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+    assert "face_width" not in press_file.read_text()
+    assert load_project(press_file).parts["cam"][2].size("face_width") is None
+
+
+async def test_renaming_the_cam_s_axis_in_the_axes_view_carries_the_cam_along(press_file):
+    app = Workbench(load_project(press_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("4")
+        await settle(pilot)
+        before = rows(app)["pressure angle"]["value"]
+        await pilot.press("1")
+        await settle(pilot)
+        await pilot.press("n")
+        await pilot.pause()
+        dialog = app.screen
+        assert isinstance(dialog, EditDialog) and dialog.query_one("#value", Input).value == "stamp"
+        await type_value(pilot, "feed-lever")
+        assert dialog.error == "name: another axis is called 'feed-lever'; axis names must be unique"
+        await pilot.press("enter")  # refused: the dialog stays and nothing changes
+        await pilot.pause()
+        assert app.screen is dialog and not app.history.can_undo
+        await type_value(pilot, "punch")
+        assert str(dialog.query_one("#feedback", Static).content) == '✓ stamp → punch; cam "stamp-cam" follows'
+        await pilot.press("enter")
+        await settle(pilot)
+        assert app.status_text == 'renamed axis stamp to punch (cam "stamp-cam" too)'
+        assert app.query_one("#axes").axis_name == "punch"
+        assert app.project.parts["cam"][0].axis == "punch"
+        await pilot.press("4")
+        await settle(pilot)
+        assert "axis punch" in str(app.query_one("#cam-bar", Static).content)
+        assert rows(app)["pressure angle"]["value"] == before  # the same motion: the same cam
+        await pilot.press("ctrl+z")  # one step back: the axis and its cam both
+        await settle(pilot)
+        assert app.project.axes[0].name == "stamp" and app.project.parts["cam"][0].axis == "stamp"
+        assert not app.history.can_undo and not app.history.modified
+        await pilot.press("ctrl+y", "ctrl+s")
+        await settle(pilot)
+    old, new = preset_path("cam-press").read_text().splitlines(), press_file.read_text().splitlines()
+    assert [(a, b) for a, b in zip(old, new) if a != b] == [('name = "stamp"', 'name = "punch"'),
+                                                            ('axis = "stamp"', 'axis = "punch"')]
+    assert load_project(press_file).parts["cam"][0].axis == "punch"
 
 
 async def test_a_cam_an_edit_cannot_lay_out_is_reported_not_raised(press_file):

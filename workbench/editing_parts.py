@@ -73,7 +73,7 @@ def set_cam_size(project: Project, cam_name: str, key: str, value: float | None)
         follower_of(edited)
     except CamGeometryError as exc:
         others = ", ".join(f"{k} {v:g} mm" for k, v in edited.sizes if k != key)
-        raise EditError(f"{key} = {_mm(value)}: {exc.message}" + (f" (the others: {others})" if others else ""),
+        raise EditError(f"{key} = {_mm(value)}: {exc.message}" + (f" — with {others}" if others else ""),
                         key) from None
     if edited.limits.curvature_ratio is not None and edited.size("roller_radius") == 0:
         raise EditError("roller_radius = 0 mm makes a knife edge, which has no curvature ratio: "
@@ -126,14 +126,15 @@ def axis_users(project: Project, name: str) -> list[str]:
 
 def rename_axis(project: Project, old: str, new: str) -> Project:
     """Axis `old` called `new` (surrounding spaces dropped), and every cam and linkage driver that
-    follows it with it, in one edit.  Refused when the name is blank, unchanged, or already taken
-    by another axis or by a table name `camwright table --axis` knows (a linkage output, a load)."""
+    follows it with it, in one edit (the same name: the same project).  Refused when the name is blank
+    or already taken by another axis or by a table name `camwright table --axis` knows (a linkage
+    output, a load)."""
     i = axis_index(project, old)
     name = new.strip()
     if not name:
         raise EditError("name: must not be empty", "name")
     if name == old:
-        raise EditError(f"name: the axis is called {old!r} already; type a new name", "name")
+        return project
     if any(a.name == name for a in project.axes):
         raise EditError(f"name: another axis is called {name!r}; axis names must be unique", "name")
     tables = {n for lister in TABLE_NAMES for n in lister(project)}

@@ -5,7 +5,7 @@ view, an undo, an open) is studied again in a worker (`cam_data.study_cams`),
 so the view always shows the edited project, not the file on disk.  Keys:
 `,` `.` pick the cam, `←` `→` turn it (shift: 1°), `home` back to 0°, `w`
 to the worst spots in turn, `e` export the profile with the writer of
-`camwright profile`.
+`camwright profile`, `s` change the follower's sizes (`cam_sizes`).
 """
 
 from __future__ import annotations
@@ -28,13 +28,15 @@ from ..format import OK_STYLE, OVER_STYLE, degrees
 from ..messages import Status
 from ..widgets.cam_data import CamEntry, readout, study_cams
 from ..widgets.cam_drawing import CELL_ASPECT, CamDrawing, legend, turning_words
+from ..widgets.cam_empty import no_cam_text
 from ..widgets.cam_export import start_export
 from ..widgets.cam_plots import AnglePlot, pressure_angle_plot, radius_plot
 from ..widgets.cam_verdicts import CamVerdicts, angle, show_text
 from . import register_view
+from .cam_sizes import start_size_edit
 from .base import WorkbenchView
 
-CAM_ACTIONS = {"step", "go", "worst", "export", "cycle_cam"}  # keys that need a cam
+CAM_ACTIONS = {"step", "go", "worst", "export", "cycle_cam", "sizes"}  # keys that need a cam
 COARSE_STEP = 5.0  # deg per ← →
 FINE_STEP = 1.0  # deg per shift+← →
 PLOT_ROWS = (7, 13)  # least and most rows for the plots; a third of the view between them
@@ -46,47 +48,11 @@ WIDE_DRAWING = 40  # the drawing gives way to the bars only while it keeps this 
 STRAIGHT = 1e6  # mm: a radius beyond this is shown as straight
 LIFT_AT_REST = 1e-9  # |ds/dθ| below this (axis unit per rad) counts as at rest
 
-EXAMPLE = (  # (key = value, comment): the smallest useful [[cam]], from the README's Cams section
-    ("[[cam]]", ""),
-    ('name = "{name}"', "unique among the cams"),
-    ('axis = "{axis}"', "the axis whose motion the follower makes"),
-    ('turning = "cw"', '"cw" or "ccw"'),
-    ("", ""),
-    ("[cam.follower]", ""),
-    ('type = "translating-roller"', 'an axis in deg: "oscillating-roller"'),
-    ("prime_radius = 60.0", "mm"),
-    ("roller_radius = 12.0", "mm"),
-    ("offset = 6.0", "mm"),
-)
-COMMENT_COLUMN = 31  # where the example's comments start
-
 
 class CamBar(Static):
     """Which cam, its follower and axis, and its verdict, in one line."""
 
     DEFAULT_CSS = "CamBar { height: 1; padding: 0 1; }"
-
-
-def example_text(axis: str) -> str:
-    """The example [[cam]] table for an axis named `axis`, comments lined up."""
-    lines = []
-    for code, comment in EXAMPLE:
-        code = code.format(name=f"{axis}-cam", axis=axis)
-        lines.append(f"{code.ljust(COMMENT_COLUMN - 1)} # {comment}" if comment else code)
-    return "\n".join(lines)
-
-
-def no_cam_text(project: Project | None) -> Text:
-    """What to say when the project has no [[cam]]: what a cam table is, with an example."""
-    axis = next((a.name for a in project.axes if a.unit == "mm" and not a.index), None) if project else None
-    text = Text()
-    text.append("This project has no [[cam]] table.\n\n", style="bold")
-    text.append("A [[cam]] table turns an axis into a disk cam: the axis motion becomes the follower's "
-                "motion against cam angle. Add one to the file, for example:\n\n")
-    text.append(example_text(axis or "an-axis-in-mm") + "\n\n", style="cyan")
-    text.append("then open the file again (ctrl+o). The README's Cams section lists every follower type, "
-                "[cam.limits] and [cam.loads].", style="dim")
-    return text
 
 
 class CamView(WorkbenchView):
@@ -118,6 +84,8 @@ class CamView(WorkbenchView):
         Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Cam angle back to 0°"),
         Binding("w", "worst", "Worst spot", tooltip="Turn to the largest pressure angle, the least radius, "
                 "then any undercut, cusp or corner, in turn"),
+        Binding("s", "sizes", "Sizes", tooltip="Change a size of the follower: prime or base circle, roller, "
+                "offset, face, arm (refused with the reason where the cam cannot take it)", id="cam-sizes"),
         Binding("e", "export", "Export", tooltip="Write the profile as CSV, DXF or SVG (the writer of "
                 "camwright profile)", id="cam-export"),
         Binding("comma", "cycle_cam(-1)", "Prev cam", key_display=",", show=False, tooltip="Show the previous cam"),
@@ -380,6 +348,10 @@ class CamView(WorkbenchView):
             self.app.bell()
             return
         start_export(self, self.project, entry.spec)
+
+    def action_sizes(self) -> None:
+        if self.project is not None and self.cam_name is not None:
+            start_size_edit(self, self.project, self.cam_name)
 
 
 def _radius(mm: float) -> str:
