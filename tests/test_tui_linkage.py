@@ -35,11 +35,13 @@ from textual.widgets import Input, Static
 
 from workbench.app import Workbench
 from workbench.axisreport import fmt
+from workbench.editing import set_to
 from workbench.linkagefile import linkage_specs
 from workbench.linkagesolve import solve_linkage
 from workbench.linkagestudy import study_linkage
 from workbench.presets import preset_path
 from workbench.projectfile import load_project, loads_project
+from workbench.tui.messages import ProjectEdited
 from workbench.tui.screens.edit_value import EditDialog
 from workbench.tui.screens.help import binding_sections
 from workbench.tui.views.linkage import LinkageView
@@ -49,7 +51,6 @@ from workbench.tui.widgets.linkage_empty import EXAMPLE, example_text
 from workbench.tui.widgets.linkage_layout import arrange
 from workbench.tui.widgets.linkage_plots import LinkagePlot
 from workbench.tui.widgets.linkage_report import LinkageReport
-from workbench.tui.widgets.segment_table import SegmentTable
 
 SIZE = (100, 30)
 SHOWN_REL = 6e-4  # 4 significant digits on screen: at most half a unit in the 4th digit
@@ -376,6 +377,14 @@ def carriage_file(tmp_path) -> Path:
     return path
 
 
+async def edit_from_axes_view(pilot, edited) -> None:
+    """An edit sent up as the Axes view sends every edit (how its cells are typed is its own tests'
+    business)."""
+    pilot.app.query_one("#axes").post_message(ProjectEdited(edited, "edited in the Axes view"))
+    await settle(pilot)
+    assert pilot.app.project is edited
+
+
 async def test_editing_the_driving_axis_changes_the_output_peak(carriage_file):
     disk = carriage_file.read_text()
     app = Workbench(load_project(carriage_file))
@@ -385,13 +394,7 @@ async def test_editing_the_driving_axis_changes_the_output_peak(carriage_file):
         await pilot.press("1")
         await settle(pilot)
         assert app.query_one("#axes").axis_name == "carriage"
-        app.query_one(SegmentTable).move_cursor(row=1, column=3)  # segment 2 (modified sine out): its end
-        await pilot.press("enter")
-        await pilot.pause()
-        assert isinstance(app.screen, EditDialog)
-        app.screen.query_one("#value", Input).value = "60"
-        await pilot.press("enter")
-        await settle(pilot)
+        await edit_from_axes_view(pilot, set_to(app.project, "carriage", 1, 60.0))  # segment 2 (modified sine out)
         assert app.project.axis("carriage").segments[1].to == 60.0
         await pilot.press("3")
         await settle(pilot)
@@ -406,6 +409,40 @@ async def test_editing_the_driving_axis_changes_the_output_peak(carriage_file):
     assert carriage_file.read_text() == disk  # nothing written: the view showed the edited project
 
 
+async def test_renaming_the_driving_axis_keeps_the_linkage_running(carriage_file):
+    app = Workbench(load_project(carriage_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await open_view(pilot)
+        before = rows(app)["velocity"]["value"]
+        await pilot.press("1")
+        await settle(pilot)
+        await pilot.press("n")  # the Axes view's rename: the value dialog
+        await pilot.pause()
+        assert isinstance(app.screen, EditDialog)
+        assert app.screen.prompt.endswith('renamed with it (linkage "drive" driver "stroke"):')
+        app.screen.query_one("#value", Input).value = "gripper"  # the other axis: refused, nothing changes
+        await pilot.pause()
+        assert app.screen.error == "name: another axis is called 'gripper'; axis names must be unique"
+        app.screen.query_one("#value", Input).value = "sled"
+        await pilot.pause()
+        assert app.screen.error is None
+        await pilot.press("enter")
+        await settle(pilot)
+        assert app.status_text == 'renamed axis carriage to sled (linkage "drive" driver "stroke" too)'
+        assert app.query_one("#axes").axis_name == "sled"
+        assert [d.axis for d in linkage_specs(app.project)[0].drivers] == ["sled"]
+        await pilot.press("3")
+        await settle(pilot)
+        assert "✗" not in bar(app)  # still built and solved under the new name
+        assert rows(app)["velocity"]["value"] == before  # the same motion: the same peak
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+    text = carriage_file.read_text()
+    assert 'name = "sled"           # the motion program: carriage stroke, mm' in text
+    assert 'axis = "sled"\n' in text and 'name = "carriage"\n' in text  # the body keeps its name
+    assert linkage_specs(load_project(carriage_file))[0].drivers[0].axis == "sled"
+
+
 async def test_an_edit_elsewhere_needs_no_new_study():
     app = Workbench(load_project(preset_path("slider-crank")))  # a crank turned steadily: no axis drives it
     async with app.run_test(size=SIZE) as pilot:
@@ -413,12 +450,7 @@ async def test_an_edit_elsewhere_needs_no_new_study():
         entry = view(app).entry
         await pilot.press("1")
         await settle(pilot)
-        app.query_one(SegmentTable).move_cursor(row=0, column=3)
-        await pilot.press("enter")
-        await pilot.pause()
-        app.screen.query_one("#value", Input).value = "25"
-        await pilot.press("enter")
-        await settle(pilot)
+        await edit_from_axes_view(pilot, set_to(app.project, app.project.axes[0].name, 0, 25.0))
         await pilot.press("3")
         await settle(pilot)
         assert view(app).entry is entry and view(app).fresh  # the lane-gate axis does not move the pusher

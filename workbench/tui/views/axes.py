@@ -32,6 +32,7 @@ from ..widgets.axis_plots import PlotPanel
 from ..widgets.peaks_panel import PeaksPanel
 from ..widgets.segment_table import SegmentTable
 from . import axes_dialogs as dialogs
+from .axis_rename import start_rename
 from .base import WorkbenchView
 
 HOLD_S = 0.1  # the longest a new state waits for its numbers before it is painted alone (s)
@@ -59,6 +60,7 @@ class AxesView(WorkbenchView):
         Binding("right_square_bracket", "move(1)", "Later", show=False, key_display="]",
                 tooltip="Move the segment one place later in the cycle"),
         Binding("m", "speed", "Speed", tooltip="Change the machine speed (cycles/min)"),
+        Binding("n", "rename", "Rename", show=False, tooltip="Rename the axis; its cams and linkage drivers follow"),
         Binding("L", "limits", "Limits", key_display="L",
                 tooltip="Velocity, acceleration and jerk limits of this axis"),
         Binding("comma", "cycle_axis(-1)", "Prev axis", key_display=",", show=False,
@@ -239,6 +241,9 @@ class AxesView(WorkbenchView):
     def action_add(self) -> None:
         self._cursor_after = self._index + 1
         self._open(lambda: dialogs.add_dialog(self.project, self.axis_name, self._index))
+
+    def action_rename(self) -> None:
+        start_rename(self)
 
     def action_speed(self) -> None:
         self._open(lambda: dialogs.speed_dialog(self.project))
