@@ -16,16 +16,20 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import HealthCheck, assume, given, settings
+from hypothesis import strategies as st
 from scipy.optimize import minimize_scalar
 
 from motionlaws import Axis, Segment, compile_axis
-from solver.kinematics import DEG, BodyAngle, JointCoordinate, PointY, ProgramMotion, solve_cycle
+from solver.kinematics import DEG, MM, BodyAngle, JointCoordinate, PointY, ProgramMotion, solve_cycle
 from solver.kinematics import peaks as peaks_module
 from solver.kinematics.joins import output_joins
 from solver.kinematics.march import JOIN_GAP
 from solver.kinematics.motion import breaks_between
 from solver.kinematics.peaks import MAX_CANDIDATES, output_peaks
-from tests.test_kinematics_slider_crank import A, B, C, OMEGA, SPEED, assert_close, norton_slider, sympy_slider_jerk
+from tests.test_kinematics_slider_crank import (
+    A, B, C, OMEGA, SPEED, assert_close, inverse_crank, norton_slider, sympy_slider_jerk,
+)
 from tests.test_kinematics_support import slider_crank
 
 
@@ -170,3 +174,63 @@ def test_joins_give_each_side_of_every_jump():
                         (join.right, crank[round(math.degrees(join.at), 9)].right)):
             x, v, acc = norton_slider(np.array([theta2]), c[1], c[2])
             np.testing.assert_allclose(side[:3], [x[0], v[0], acc[0]], rtol=1e-8, atol=1e-12)
+
+
+LAWS_WITH_JUMPS = ("dwell", "constant-velocity", "harmonic", "cycloidal", "modified-trapezoid")
+
+
+@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(
+    laws=st.lists(st.sampled_from(LAWS_WITH_JUMPS), min_size=2, max_size=5),
+    cuts=st.lists(st.floats(min_value=0.05, max_value=0.95), min_size=4, max_size=4, unique=True),
+    rises=st.lists(st.floats(min_value=10.0, max_value=120.0), min_size=5, max_size=5),
+)
+def test_any_program_of_laws_drives_the_crank_as_the_closed_form_says(laws, cuts, rises):
+    """Whatever laws follow each other, at whatever (unround) boundaries, one solve gives Norton's closed form."""
+    spans = np.diff(np.concatenate([[0.0], np.sort(cuts)[: len(laws) - 1] * 360.0, [360.0]]))
+    assume(np.all(spans > 5.0))
+    to, segments = 0.0, []
+    for law, span, rise in zip(laws, spans, rises):
+        if law != "dwell":
+            to += rise
+        segments.append(Segment(law, float(span), None if law == "dwell" else to))
+    segments[-1] = Segment(segments[-1].law if segments[-1].law != "dwell" else "cycloidal", float(spans[-1]), 360.0)
+    program = compile_axis(Axis("crank", tuple(segments), unit="deg", start=0.0, index=360.0))
+    result = solve(program)
+    assert result.success, result.message
+    t2, w2, al2, _ = crank_rates(program, result.theta)
+    stroke = result.output(JointCoordinate("slide"))
+    x, v, acc = norton_slider(t2, w2, al2)
+    # positions converge to 1e-10 of the linkage's size (newton.POSITION_TOLERANCE); rates inherit that level
+    assert_close(stroke.value, x, 1e-12, "position")
+    assert_close(stroke.velocity, v, 1e-9, "velocity")
+    assert_close(stroke.acceleration, acc, 1e-9, "acceleration")
+
+
+@settings(max_examples=15, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(
+    laws=st.lists(st.sampled_from(LAWS_WITH_JUMPS), min_size=2, max_size=5),
+    cuts=st.lists(st.floats(min_value=0.05, max_value=0.95), min_size=4, max_size=4, unique=True),
+    places=st.lists(st.floats(min_value=90.0, max_value=120.0), min_size=5, max_size=5),
+)
+def test_any_program_on_the_slider_gives_the_crank_of_the_inverse_closed_form(laws, cuts, places):
+    """Output driving through any sequence of laws: the free crank follows the inverse of Norton's closed
+    form (the slider stays inside its stroke, clear of the dead points), its rate by the chain rule."""
+    spans = np.diff(np.concatenate([[0.0], np.sort(cuts)[: len(laws) - 1] * 360.0, [360.0]]))
+    assume(np.all(spans > 5.0))
+    segments = [Segment(law, float(span), None if law == "dwell" else place)
+                for law, span, place in zip(laws, spans, places)]
+    segments[-1] = Segment(segments[-1].law if segments[-1].law != "dwell" else "cycloidal", float(spans[-1]), 90.0)
+    program = compile_axis(Axis("slider", tuple(segments), unit="mm", start=90.0))
+    assume(np.ptp(program.master(np.linspace(0.0, 360.0, 721))[0]) > 1.0)  # the slider moves (mm)
+    model = slider_crank(A, B, C, float(inverse_crank(0.090)), driver="slider", motion=ProgramMotion(program, scale=MM))
+    result = solve_cycle(model, SPEED)
+    assert result.success, result.message
+    s, d1, _, _ = program.master(np.degrees(result.theta))
+    theta2 = inverse_crank(s * MM)
+    crank = result.output(JointCoordinate("O"))
+    assert_close(crank.value, theta2, 1e-12, "crank angle")
+    # dx/dθ2 from Norton's x_B(θ2) (test_kinematics_slider_crank), so θ2' = x'/(dx/dθ2)
+    s3 = (C - A * np.sin(theta2)) / B
+    dx = -A * np.sin(theta2) + A * np.cos(theta2) * s3 / np.sqrt(1 - s3 * s3)
+    assert_close(crank.d1, d1 * MM / dx, 1e-9, "crank rate")
