@@ -583,12 +583,12 @@ async def test_a_linkage_that_does_not_assemble_says_so():
 
 
 async def test_a_study_that_fails_is_said_not_left_computing(monkeypatch):
-    import workbench.tui.views.linkage as linkage_view
+    import workbench.tui.views.linkage_studies as linkage_studies
 
     def broken(project, spec):
         raise RuntimeError("solver out of order")
 
-    monkeypatch.setattr(linkage_view, "study_entry", broken)
+    monkeypatch.setattr(linkage_studies, "study_entry", broken)
     app = Workbench(load_project(preset_path("slider-crank")))
     async with app.run_test(size=SIZE) as pilot:
         await open_view(pilot)
