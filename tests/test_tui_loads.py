@@ -382,3 +382,15 @@ async def test_stepping_from_a_plotted_item_to_words_and_back(monkeypatch):
         await pilot.press("right")
         await settle(pilot)
         assert view(app).angle == 5.0
+
+
+def test_loads_view_words_only_80x24(snap_compare, plain_environment):
+    app = Workbench(load_project(preset_path("six-bar-press")))  # a linkage without [linkage.loads]
+
+    async def check(pilot):
+        await settle(pilot)
+        await pilot.press("5")
+        await settle(pilot)
+        assert words_only_shown(app) and view(app).item_name == "press"
+
+    assert snap_compare(app, terminal_size=(80, 24), run_before=check)
