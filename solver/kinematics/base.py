@@ -23,6 +23,11 @@ A kind must give (numbered as the solver uses them):
 6. ``eta(par, poses, rates, accels)`` — η: minus the part of d³Φ/dθ³ that
    does not contain q''' (so that Φq q''' = η).
 
+Optionally, ``residual_jacobian(par, *poses)`` gives 3. and 4. together
+(the base class calls the two); a kind overrides it to share the work
+between them where that pays (the one-instant path, instant.py, calls it
+once per instance and Newton iteration of a march step, on floats).
+
 `par` maps each parameter name of the binding to its stack over instances,
 component first and ready to broadcast: shape (d, k, 1) for a parameter of
 d numbers, so ``sx, sy = par["s"]`` gives two (k, 1) columns; `poses` holds one `Pose` per slot, `rates` and `accels` one
@@ -77,6 +82,11 @@ class Constraint:
     @classmethod
     def jacobian(cls, par, *poses):  # pragma: no cover - contract
         raise NotImplementedError
+
+    @classmethod
+    def residual_jacobian(cls, par, *poses):
+        """(residual rows, Jacobian rows) as `residual` and `jacobian` give them."""
+        return cls.residual(par, *poses), cls.jacobian(par, *poses)
 
     @classmethod
     def gamma(cls, par, poses, rates):  # pragma: no cover - contract

@@ -41,6 +41,7 @@ class Group:
     cols: np.ndarray  # (3·slots, k) column of each partial derivative (ground: dummy columns)
     variable: list[tuple[int, int]] = field(default_factory=list)  # (row, col) entries that vary
     var_slots: np.ndarray | None = None  # compact-Jacobian slot of each varying entry, instance-major per entry
+    var_slot_rows: list | None = None  # var_slots split per varying entry: (k,) slots of its instances
     flat_rows: np.ndarray | None = None  # rows.ravel(): where a kind's stacked rows go
     number: int = 0  # position among the System's groups (names its scratch buffers)
 
@@ -227,6 +228,7 @@ class Compiling:
                 rows = np.concatenate([g.rows[r] for r, _ in g.variable])
                 cols = np.concatenate([g.cols[c] for _, c in g.variable])
                 g.var_slots = np.where(cols < n, slot_of[rows, np.minimum(cols, n - 1)], ground)
+                g.var_slot_rows = np.split(g.var_slots, len(g.variable))
                 varying[g.var_slots] = True
         values = np.append(self._template[:, :n].ravel()[flat], [0.0, 0.0])
         self._fixed_slots = np.flatnonzero(~varying)

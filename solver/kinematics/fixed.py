@@ -41,6 +41,11 @@ class Fixed(Constraint):
         return Revolute.jacobian(par, pi, pj) + [[0.0, 0.0, -1.0, 0.0, 0.0, 1.0]]
 
     @classmethod
+    def residual_jacobian(cls, par, pi, pj):
+        residual, partials = Revolute.residual_jacobian(par, pi, pj)
+        return residual + [pj.phi - pi.phi - par["angle"][0]], partials + [[0.0, 0.0, -1.0, 0.0, 0.0, 1.0]]
+
+    @classmethod
     def gamma(cls, par, poses, rates):
         return Revolute.gamma(par, poses, rates) + [0.0]
 

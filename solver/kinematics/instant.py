@@ -127,11 +127,9 @@ class InstantKinds:
         poses = self.poses(q)
         rows, entries = [], []
         for kind, par, slots, picks in self.items:
-            ps = [poses[s] for s in slots]
-            rows += kind.residual(par, *ps)
-            if picks:
-                partials = kind.jacobian(par, *ps)
-                entries += [partials[r][c] for r, c in picks]
+            residual, partials = kind.residual_jacobian(par, *[poses[s] for s in slots])
+            rows += residual
+            entries += [partials[r][c] for r, c in picks]
         res = [0.0] * self.m
         for r, v in zip(self.res_rows, rows):
             res[r] = v
@@ -217,8 +215,9 @@ class InstantKinds:
         poses, rates, accels = self.poses(q), self.rates(dq), self.rates(ddq)
         for kind, par, slots, _ in self.items:
             ps, rs, acs = [poses[s] for s in slots], [rates[s] for s in slots], [accels[s] for s in slots]
-            values = list(kind.residual(par, *ps)) + list(kind.gamma(par, ps, rs)) + list(kind.eta(par, ps, rs, acs))
-            values += [v for row in kind.jacobian(par, *ps) for v in row]
+            residual, partials = kind.residual_jacobian(par, *ps)
+            values = list(residual) + list(kind.gamma(par, ps, rs)) + list(kind.eta(par, ps, rs, acs))
+            values += [v for row in partials for v in row]
             if not all(type(v) in (float, int) for v in values):
                 return False
         return True

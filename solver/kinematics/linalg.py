@@ -36,6 +36,7 @@ PLAN_SEED = 7  # fixed, so a mechanism always gets the same plan
 CONSTANT_TOLERANCE = 1e-13  # entries equal across samples to this are constant
 MIN_CONSTANT_PIVOT = 0.5  # smallest constant entry worth pivoting on (pins give 1)
 TINY = 1e-300  # guards a division when a pivot is exactly zero (singular matrix)
+FEW_ENTRIES = 4  # a fill-in update over at most this many entries runs row by row (fewer calls than gathers)
 
 
 @dataclass
@@ -58,6 +59,8 @@ class Step:
     grid_slots: np.ndarray | None = None
     pivot_value: float | None = None
     multipliers: np.ndarray | None = None
+    grid_ops: list | None = None  # known multipliers over a few entries: (grid slot, right slot, multiplier) each
+    forward: tuple | None = None  # one row below, known multiplier: (row below, pivot row, multiplier)
 
 
 class EliminationPlan:
@@ -142,7 +145,7 @@ class EliminationPlan:
             s.below_slots = slot_of[s.below, s.c]
             s.right_slots = slot_of[s.r, s.right]
             s.grid_slots = slot_of[np.ix_(s.below, s.right)]
-            s.pivot_value = s.multipliers = None
+            s.pivot_value = s.multipliers = s.grid_ops = s.forward = None
             if known is None:
                 continue
             pivot = known[s.pivot_slot]
@@ -152,6 +155,13 @@ class EliminationPlan:
                 below = known[s.below_slots]
                 if np.all(np.isfinite(below)):
                     s.multipliers = below / pivot
+            if s.multipliers is not None and 0 < s.below.size * s.right.size <= FEW_ENTRIES:
+                s.grid_ops = [
+                    (int(s.grid_slots[i, j]), int(s.right_slots[j]), float(s.multipliers[i]))
+                    for i in range(s.below.size) for j in range(s.right.size)
+                ]
+            if s.multipliers is not None and s.below.size == 1:
+                s.forward = (int(s.below[0]), int(s.r), float(s.multipliers[0]))
             if s.below.size and s.right.size:  # the update of the grid keeps it known only if all it uses is known
                 if s.multipliers is not None:
                     known[s.grid_slots] -= s.multipliers[:, None] * known[s.right_slots][None, :]
@@ -314,7 +324,15 @@ class SparseFactor:
                 L = None
             elif s.multipliers is not None:  # known: (len(below), 1) to broadcast over instants
                 L = s.multipliers[:, None]
-                if s.right.size:
+                if s.grid_ops is not None:  # a few entries: row by row, in place (±1: an addition)
+                    for grid, right, factor in s.grid_ops:
+                        if factor == 1.0:
+                            V[grid] -= V[right]
+                        elif factor == -1.0:
+                            V[grid] += V[right]
+                        else:
+                            V[grid] -= factor * V[right]
+                elif s.right.size:
                     V[s.grid_slots] -= L[:, :, None] * V[s.right_slots][None]
             else:
                 L = V[s.below_slots] / V[s.pivot_slot]
@@ -332,12 +350,14 @@ class SparseFactor:
         perm = np.empty((r, N), dtype=np.intp)
         perm[:] = np.arange(r)[:, None]
         self.instants = instants = np.arange(N)  # for per-instant fancy indexing
+        swapped = False
         smallest = np.full(N, np.inf)
         largest = np.ones(N)  # constant pivots are 1 in magnitude
         for k in range(r):
             if k + 1 < r:
                 rel = np.abs(S[k:, k, :]).argmax(axis=0)  # pivot row per instant, counted from row k
                 if rel.any():
+                    swapped = True
                     _swap_rows(S, k, rel, instants)
                     _swap_rows(perm, k, rel, instants)
                     np.negative(det_sign, out=det_sign, where=rel != 0)
@@ -351,7 +371,7 @@ class SparseFactor:
                     S[k + 1 :, k] /= np.where(pivot == 0.0, TINY, pivot)
                 S[k + 1 :, k + 1 :] -= S[k + 1 :, k, None, :] * S[k, None, k + 1 :, :]
         self.S = S
-        self.perm = perm
+        self.gather = (perm * N + instants).ravel() if swapped else None  # rows in pivot order, per instant
         self.det_sign = det_sign
         # back substitution reads the same pivot rows for every right-hand side: gather them once
         self.back = [
@@ -368,30 +388,34 @@ class SparseFactor:
         for s, L in zip(plan.steps, self.multipliers):
             if L is None:
                 continue
-            if s.below.size == 1 and s.multipliers is not None:  # one row, a known number: in place
-                row, factor = x[s.below[0]], float(L[0, 0])
+            if s.forward is not None:  # one row, a known number: in place
+                below, r, factor = s.forward
                 if factor == 1.0:
-                    row -= x[s.r]
+                    x[below] -= x[r]
                 elif factor == -1.0:
-                    row += x[s.r]
+                    x[below] += x[r]
                 else:
-                    row -= factor * x[s.r]
+                    x[below] -= factor * x[r]
             else:
                 x[s.below] -= L * x[s.r]
         out = np.empty_like(x)
         R, C = plan.rest_rows, plan.rest_cols
         r = len(R)
         if r:
-            y = (x[R] * self.rest_row_scale)[self.perm, self.instants]  # rows in pivot order, per instant
+            y = x[R]
+            y *= self.rest_row_scale
+            if self.gather is not None:  # rows in pivot order, per instant
+                y = y.ravel().take(self.gather).reshape(y.shape)
             S = self.S
             for k in range(1, r):
                 y[k] -= S[k, 0] * y[0] if k == 1 else (S[k, :k] * y[:k]).sum(axis=0)
-            for k in range(r - 1, -1, -1):
-                if k + 1 < r:
-                    y[k] -= S[k, k + 1] * y[k + 1] if k + 2 == r else (S[k, k + 1 :] * y[k + 1 :]).sum(axis=0)
-                with np.errstate(all="ignore"):
+            with np.errstate(all="ignore"):
+                for k in range(r - 1, -1, -1):
+                    if k + 1 < r:
+                        y[k] -= S[k, k + 1] * y[k + 1] if k + 2 == r else (S[k, k + 1 :] * y[k + 1 :]).sum(axis=0)
                     y[k] /= S[k, k]
-            out[C] = y * self.rest_col_scale
+            y *= self.rest_col_scale
+            out[C] = y
         for s, (row, inverse) in zip(reversed(plan.steps), reversed(self.back)):
             value = x[s.r]
             if row is not None:

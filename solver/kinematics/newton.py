@@ -59,7 +59,11 @@ def newton(
     for iteration in range(1, max_iterations + 1):
         res, jac = system.residual_jacobian(q, drive)
         F = factor(plan, jac, system.row_scale, system.col_scale)
-        step = F.solve(-res, overwrite=True)
+        if q.shape[1] > 1:  # the residual's size first: the solve takes −Φ in its place
+            residual_size = system.scaled_residual(res)
+            step = F.solve(np.negative(res, out=res), overwrite=True)
+        else:
+            step = F.solve(-res, overwrite=True)
         if q.shape[1] == 1:  # one instant (a march step): the same tests on plain numbers
             size = float(system.scaled_step(step)[0])  # NaN or inf unless every entry is finite
             done = size <= tolerance and float(system.scaled_residual(res)[0]) <= residual_tolerance
@@ -71,14 +75,15 @@ def newton(
             if done:
                 return Solved(q, converged, F, iteration)
             continue
+        size = system.scaled_step(step)  # per instant: NaN or inf unless every entry of its step is finite
         with np.errstate(invalid="ignore"):
-            converged = (system.scaled_step(step) <= tolerance) & (system.scaled_residual(res) <= residual_tolerance)
-        if np.isfinite(step).all():
+            converged = (size <= tolerance) & (residual_size <= residual_tolerance)
+        finite = np.isfinite(size)
+        if finite.all():
             q += step
             if iteration == max_iterations or converged.all():
                 system.advance_poses(step)  # the derivatives are evaluated at q next
         else:  # singular instants: leave them where they are (they stay unconverged)
-            finite = np.all(np.isfinite(step), axis=0)
             q[:, finite] += step[:, finite]
         if converged.all():
             return Solved(q, converged, F, iteration)

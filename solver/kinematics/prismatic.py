@@ -60,6 +60,11 @@ class Prismatic(Constraint):
         ]
 
     @classmethod
+    def residual_jacobian(cls, par, pi, pj):
+        g, partials = projection.value_jacobian(pi, pj, par["si"], par["sj"], par["n"])
+        return [g, pj.phi - pi.phi - par["angle"][0]], [partials, [0.0, 0.0, -1.0, 0.0, 0.0, 1.0]]
+
+    @classmethod
     def gamma(cls, par, poses, rates):
         return [projection.gamma(poses, rates, par["si"], par["sj"], par["n"]), 0.0]
 

@@ -56,6 +56,16 @@ def jacobian(pi, pj, si, sj, wl):
     return [-wx, -wy, dphi_i, wx, wy, dphi_j]
 
 
+def value_jacobian(pi, pj, si, sj, wl):
+    """(g, its six partials as `jacobian`), the shared rotations worked out once."""
+    wx, wy = pi.rotate(wl)
+    ai, aj, d = _offset(pi, pj, si, sj)
+    pw = perp(wx, wy)
+    dphi_i = dot(*pw, *d) - dot(wx, wy, *perp(*ai))
+    dphi_j = dot(wx, wy, *perp(*aj))
+    return dot(wx, wy, *d), [-wx, -wy, dphi_i, wx, wy, dphi_j]
+
+
 def gamma(poses, rates, si, sj, wl):
     pi, pj = poses
     vi, vj = rates

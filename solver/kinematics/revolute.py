@@ -54,6 +54,15 @@ class Revolute(Constraint):
         ]
 
     @classmethod
+    def residual_jacobian(cls, par, pi, pj):
+        aix, aiy = pi.rotate(par["si"])
+        ajx, ajy = pj.rotate(par["sj"])
+        return (
+            [pi.x + aix - pj.x - ajx, pi.y + aiy - pj.y - ajy],
+            [[1.0, 0.0, -aiy, -1.0, 0.0, ajy], [0.0, 1.0, aix, 0.0, -1.0, -ajx]],
+        )
+
+    @classmethod
     def gamma(cls, par, poses, rates):
         pi, pj = poses
         aix, aiy = pi.rotate(par["si"])

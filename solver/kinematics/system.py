@@ -112,14 +112,9 @@ class System(Compiling, PoseBuffers):
 
     @staticmethod
     def _scatter(out, g: Group, values) -> None:
-        """Write a kind's rows (arrays (k, N) or plain numbers) into out (m, N)."""
-        shape = (g.rows.shape[1], out.shape[1])
-        for v in values:
-            if v.__class__ is not np.ndarray or v.shape != shape:
-                for r, value in enumerate(values):
-                    out[g.rows[r]] = value
-                return
-        out[g.flat_rows] = np.concatenate(values)
+        """Write a kind's rows (arrays (k, N) or plain numbers) into out (m, N), row by row (one copy each)."""
+        for rows, value in zip(g.rows, values):
+            out[rows] = value
 
     def residual(self, q: np.ndarray, drive: np.ndarray) -> np.ndarray:
         """Φ (m, N) at coordinates q (n, N) with driver values `drive` from `drive()`."""
@@ -150,15 +145,8 @@ class System(Compiling, PoseBuffers):
             self._scatter(res, g, g.kind.residual(g.par, *poses))
             if g.variable:
                 partials = g.kind.jacobian(g.par, *poses)
-                shape = (g.rows.shape[1], N)
-                parts = [partials[r][c] for r, c in g.variable]
-                try:
-                    block = np.concatenate(parts)
-                except ValueError:  # mixed shapes
-                    block = None
-                if block is None or block.shape != (len(parts) * shape[0], N):
-                    block = np.concatenate([np.broadcast_to(v, shape) for v in parts])
-                values[g.var_slots] = block
+                for (r, c), slots in zip(g.variable, g.var_slot_rows):
+                    values[slots] = partials[r][c]
         res[self.first_driver_row :] -= drive[0]
         return res, Jacobian(values, self)
 
@@ -227,11 +215,13 @@ class System(Compiling, PoseBuffers):
     # -- scaling and naming --------------------------------------------------
     def scaled_step(self, dq: np.ndarray) -> np.ndarray:
         """max |Δq| per instant, lengths in units of L, angles in rad."""
-        return np.abs(dq / self.col_scale[:, None]).max(axis=0)
+        scaled = dq / self.col_scale[:, None]
+        return np.abs(scaled, out=scaled).max(axis=0)
 
     def scaled_residual(self, res: np.ndarray) -> np.ndarray:
         """max |Φ| per instant, length rows in units of L, angle rows in rad."""
-        return np.abs(res * self.row_scale[:, None]).max(axis=0)
+        scaled = res * self.row_scale[:, None]
+        return np.abs(scaled, out=scaled).max(axis=0)
 
     def scaled_jacobian(self, jac: np.ndarray) -> np.ndarray:
         """Φq with rows and columns scaled to be dimensionless (m, n, N)."""
