@@ -4,6 +4,8 @@ The dialog knows nothing about projects: it is given `attempt(text, choice)`,
 which returns the edited model or raises `EditError` with the reason.  The
 reason (or a preview of the change) shows under the input at every key;
 Enter accepts only what the model accepts, Escape leaves everything as it was.
+`try_value` is that check on its own; the cells of a table edited in place
+(`widgets.cell_editor`) use it too.
 """
 
 from __future__ import annotations
@@ -21,6 +23,16 @@ from ...editing import EditError
 
 Attempt = Callable[[str, Any], Any]
 Explain = Callable[[Any], str]
+
+
+def try_value(attempt: Attempt, explain: Explain | None, text: str, choice: Any) -> tuple[Any, str | None, Text]:
+    """Try `text` on the model: (edited model or None, the reason it is refused or None, a line to show)."""
+    try:
+        result = attempt(text, choice)
+    except EditError as exc:
+        return None, exc.message, Text(f"✗ {exc.message}", style="bold red")
+    preview = explain(result) if explain else ""
+    return result, None, Text(f"✓ {preview}" if preview else "✓ ok", style="green")
 
 
 class EditDialog(ModalScreen):
@@ -66,17 +78,9 @@ class EditDialog(ModalScreen):
 
     def _check(self) -> Any:
         """Try the typed value; show the reason or the preview; return the result or None."""
-        feedback = self.query_one("#feedback", Static)
         text, choice = self._current()
-        try:
-            result = self.attempt(text, choice)
-        except EditError as exc:
-            self.error = exc.message
-            feedback.update(Text(f"✗ {exc.message}", style="bold red"))
-            return None
-        self.error = None
-        preview = self.explain(result) if self.explain else ""
-        feedback.update(Text(f"✓ {preview}" if preview else "✓ ok", style="green"))
+        result, self.error, line = try_value(self.attempt, self.explain, text, choice)
+        self.query_one("#feedback", Static).update(line)
         return result
 
     def on_input_changed(self, event: Input.Changed) -> None:
