@@ -15,11 +15,11 @@ import numpy as np
 from rich.text import Text
 from textual.widget import Widget
 
-from .braille import BRAILLE_BASE, DOT_BITS, DOTS_X, DOTS_Y, line_dots
+from .braille import line_dots
 from .cam_data import CamEntry, cam_picture, index_of, picture_bounds
+from .scale_raster import CELL_ASPECT, ScaleRaster  # CELL_ASPECT: the views size the drawing by it
 
-CELL_ASPECT = 2.0  # height / width of a terminal cell (most fonts: 1.9–2.2)
-DOT_ASPECT = CELL_ASPECT * DOTS_X / DOTS_Y  # height / width of one braille dot
+
 MARGIN_DOTS = 1  # dots kept free at each edge
 TROUBLE_MARK = "×"
 CORNER_MARK = "◆"
@@ -36,87 +36,23 @@ LAYERS = {
 MARK_STYLE = {TROUBLE_MARK: "bold red", CORNER_MARK: "bold red", CENTRE_MARK: "bright_black"}
 
 
-def spaced_dots(x: np.ndarray, y: np.ndarray, spacing: float) -> tuple[np.ndarray, np.ndarray]:
-    """Dots every `spacing` dots of arc length along the polyline (x, y) (already in dots)."""
-    step = np.hypot(np.diff(x), np.diff(y))
-    length = np.concatenate([[0.0], np.cumsum(step)])
-    if length[-1] <= 0:
-        return np.floor(x[:1]).astype(np.int64), np.floor(y[:1]).astype(np.int64)
-    at = np.arange(0.0, length[-1], spacing)
-    return (np.floor(np.interp(at, length, x)).astype(np.int64),
-            np.floor(np.interp(at, length, y)).astype(np.int64))
-
-
-class Raster:
-    """Braille cells of `columns` × `rows`, filled layer by layer, plus symbol cells on top."""
+class Raster(ScaleRaster):
+    """The cam's braille cells: lines by layer (`LAYERS`), symbols over them (`MARK_STYLE`)."""
 
     def __init__(self, columns: int, rows: int, bounds: tuple[float, float, float, float]):
-        self.columns, self.rows = columns, rows
-        self.masks = np.zeros(columns * rows, dtype=np.int64)
-        self.styles: dict[int, str] = {}
-        self.marks: dict[int, str] = {}
-        x0, x1, y0, y1 = bounds
-        width, height = columns * DOTS_X - 2 * MARGIN_DOTS, rows * DOTS_Y - 2 * MARGIN_DOTS
-        span_x, span_y = max(x1 - x0, 1e-9), max(y1 - y0, 1e-9)
-        self.scale = min(width / span_x, height * DOT_ASPECT / span_y)  # dots per mm, across
-        """Dots per mm across (down: `scale / DOT_ASPECT`)."""
-        self.cx = MARGIN_DOTS + (width - span_x * self.scale) / 2 - x0 * self.scale
-        self.cy = MARGIN_DOTS + (height - span_y * self.scale / DOT_ASPECT) / 2 + y1 * self.scale / DOT_ASPECT
-
-    def to_dots(self, z: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        return self.cx + z.real * self.scale, self.cy - z.imag * self.scale / DOT_ASPECT
-
-    def _cells(self, px: np.ndarray, py: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        inside = (px >= 0) & (px < self.columns * DOTS_X) & (py >= 0) & (py < self.rows * DOTS_Y)
-        px, py = px[inside], py[inside]
-        return (py // DOTS_Y) * self.columns + px // DOTS_X, px, py
+        super().__init__(columns, rows, bounds, MARGIN_DOTS)
 
     def line(self, z: np.ndarray, layer: str) -> None:
         style, spacing = LAYERS[layer]
-        x, y = self.to_dots(z)
-        px, py = spaced_dots(x, y, spacing) if spacing else line_dots(x, y)
-        cells, px, py = self._cells(px, py)
-        np.bitwise_or.at(self.masks, cells, DOT_BITS[py % DOTS_Y, px % DOTS_X])
-        for c in np.unique(cells).tolist():
-            self.styles[c] = style
+        self.dots(z, style, spacing)
 
     def mark(self, z: np.ndarray, symbol: str) -> None:
         """`symbol` in every cell the polyline (or single point) `z` passes through."""
         x, y = self.to_dots(z)
         px, py = line_dots(x, y)
-        cells, _, _ = self._cells(px, py)
+        cells, _, _ = self.cells(px, py)
         for c in np.unique(cells).tolist():
-            self.marks[c] = symbol
-
-    def text(self) -> Text:
-        out = Text(no_wrap=True, overflow="crop")
-        for r in range(self.rows):
-            if r:
-                out.append("\n")
-            row = []
-            for c in range(self.columns):
-                i = r * self.columns + c
-                if i in self.marks:
-                    row.append((self.marks[i], MARK_STYLE[self.marks[i]]))
-                elif self.masks[i]:
-                    row.append((chr(BRAILLE_BASE + int(self.masks[i])), self.styles.get(i, "")))
-                else:
-                    row.append((" ", ""))
-            _append_runs(out, row)
-        return out
-
-
-def _append_runs(out: Text, cells: list[tuple[str, str]]) -> None:
-    """Append cells, joining neighbours of one style into one span (fewer spans, faster paint)."""
-    run, style = [], None
-    for ch, st in cells:
-        if st != style and run:
-            out.append("".join(run), style=style or None)
-            run = []
-        run.append(ch)
-        style = st
-    if run:
-        out.append("".join(run), style=style or None)
+            self.marks[c] = (symbol, MARK_STYLE[symbol])
 
 
 class CamDrawing(Widget, can_focus=True):
@@ -164,7 +100,7 @@ class CamDrawing(Widget, can_focus=True):
             raster.mark(stretch, TROUBLE_MARK)
         for corner in pic.corners:
             raster.mark(np.array([corner]), CORNER_MARK)
-        self.marks = {s: sum(1 for m in raster.marks.values() if m == s)
+        self.marks = {s: sum(1 for m, _ in raster.marks.values() if m == s)
                       for s in (TROUBLE_MARK, CORNER_MARK, CENTRE_MARK)}
         return raster.text()
 

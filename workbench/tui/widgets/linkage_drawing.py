@@ -1,7 +1,7 @@
 """The linkage drawn to scale in braille dots at one master angle.
 
 Equal scale across and down: a terminal cell is about twice as tall as it
-is wide (`CELL_ASPECT`) and holds 2 × 4 braille dots, so a dot is square
+is wide (scale_raster.CELL_ASPECT) and holds 2 × 4 braille dots, so a dot is square
 and one scale serves both directions.  The extent is that of the whole
 cycle, so the scale holds while the angle steps.
 
@@ -23,11 +23,11 @@ from textual.widget import Widget
 from solver.kinematics import GROUND
 
 from ...linkagefile import split_ref
-from .braille import BRAILLE_BASE, DOT_BITS, DOTS_X, DOTS_Y, line_dots
+from .braille import DOTS_X, DOTS_Y
 from .linkage_data import LinkageEntry, Pose, paths, pose_at
+from .scale_raster import ScaleRaster
 
-CELL_ASPECT = 2.0  # height / width of a terminal cell (most fonts: 1.9–2.2)
-DOT_ASPECT = CELL_ASPECT * DOTS_X / DOTS_Y  # height / width of one braille dot: 1, square
+
 MARGIN_DOTS = 2  # dots kept free at each edge (room for a symbol on the outermost point)
 GROUND_PIVOT = "▲"
 PIN = "○"
@@ -46,36 +46,11 @@ GAP_SPACING = 2.0  # the gap of a joint left open is dotted, one dot every 2
 SYMBOLS = (GROUND_PIVOT, PIN, SLIDER, WELD, OUTPUT_POINT)
 
 
-def spaced_dots(x: np.ndarray, y: np.ndarray, spacing: float) -> tuple[np.ndarray, np.ndarray]:
-    """Dots every `spacing` dots of arc length along the polyline (x, y) (already in dots)."""
-    step = np.hypot(np.diff(x), np.diff(y))
-    length = np.concatenate([[0.0], np.cumsum(step)])
-    if length[-1] <= 0:
-        return np.floor(x[:1]).astype(np.int64), np.floor(y[:1]).astype(np.int64)
-    at = np.arange(0.0, length[-1], spacing)
-    return (np.floor(np.interp(at, length, x)).astype(np.int64),
-            np.floor(np.interp(at, length, y)).astype(np.int64))
-
-
-class Raster:
-    """Braille cells of `columns` × `rows` over `bounds` (mm) at one scale, then symbols and labels."""
+class Raster(ScaleRaster):
+    """The linkage's braille cells over `bounds` (mm) at one scale, then symbols and labels."""
 
     def __init__(self, columns: int, rows: int, bounds: tuple[float, float, float, float]):
-        self.columns, self.rows = columns, rows
-        self.masks = np.zeros(columns * rows, dtype=np.int64)
-        self.styles: dict[int, str] = {}
-        self.marks: dict[int, tuple[str, str]] = {}
-        x0, x1, y0, y1 = bounds
-        width, height = columns * DOTS_X - 2 * MARGIN_DOTS, rows * DOTS_Y - 2 * MARGIN_DOTS
-        span_x, span_y = max(x1 - x0, 1e-9), max(y1 - y0, 1e-9)
-        self.scale = max(min(width / span_x, height * DOT_ASPECT / span_y), 1e-12)
-        """Dots per mm across (down: `scale / DOT_ASPECT`)."""
-        self.cx = MARGIN_DOTS + (width - span_x * self.scale) / 2 - x0 * self.scale
-        self.cy = MARGIN_DOTS + (height - span_y * self.scale / DOT_ASPECT) / 2 + y1 * self.scale / DOT_ASPECT
-
-    def to_dots(self, z) -> tuple[np.ndarray, np.ndarray]:
-        z = np.asarray(z, dtype=complex)
-        return self.cx + z.real * self.scale, self.cy - z.imag * self.scale / DOT_ASPECT
+        super().__init__(columns, rows, bounds, MARGIN_DOTS)
 
     def cell_of(self, z: complex) -> tuple[int, int]:
         """(column, row) of the cell that holds point `z` (mm)."""
@@ -83,14 +58,7 @@ class Raster:
         return int(np.floor(x)) // DOTS_X, int(np.floor(y)) // DOTS_Y
 
     def line(self, z, style: str, spacing: float = 0.0) -> None:
-        x, y = self.to_dots(np.atleast_1d(z))
-        px, py = spaced_dots(x, y, spacing) if spacing else line_dots(x, y)
-        inside = (px >= 0) & (px < self.columns * DOTS_X) & (py >= 0) & (py < self.rows * DOTS_Y)
-        px, py = px[inside], py[inside]
-        cells = (py // DOTS_Y) * self.columns + px // DOTS_X
-        np.bitwise_or.at(self.masks, cells, DOT_BITS[py % DOTS_Y, px % DOTS_X])
-        for c in np.unique(cells).tolist():
-            self.styles[c] = style
+        self.dots(z, style, spacing)
 
     def inside(self, column: int, row: int) -> bool:
         return 0 <= column < self.columns and 0 <= row < self.rows
@@ -121,36 +89,6 @@ class Raster:
                     self.marks[i] = (ch, style)
                 return True
         return False
-
-    def text(self) -> Text:
-        out = Text(no_wrap=True, overflow="crop")
-        for r in range(self.rows):
-            if r:
-                out.append("\n")
-            row = []
-            for c in range(self.columns):
-                i = r * self.columns + c
-                if i in self.marks:
-                    row.append(self.marks[i])
-                elif self.masks[i]:
-                    row.append((chr(BRAILLE_BASE + int(self.masks[i])), self.styles.get(i, "")))
-                else:
-                    row.append((" ", ""))
-            _append_runs(out, row)
-        return out
-
-
-def _append_runs(out: Text, cells: list[tuple[str, str]]) -> None:
-    """Append cells, joining neighbours of one style into one span (fewer spans, faster paint)."""
-    run, style = [], None
-    for ch, st in cells:
-        if st != style and run:
-            out.append("".join(run), style=style or None)
-            run = []
-        run.append(ch)
-        style = st
-    if run:
-        out.append("".join(run), style=style or None)
 
 
 def body_outline(entry: LinkageEntry, pose: Pose, body: str) -> np.ndarray:

@@ -14,7 +14,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .linkage_drawing import CELL_ASPECT
+from .scale_raster import CELL_ASPECT
 
 PLOT_ROWS = (7, 13)  # least and most rows for the plots; a third of the view between them
 READOUT_WIDTH = 52  # columns the readout needs ("acceleration -12,345 deg/s² · jerk -1.234e+06 deg/s³")
