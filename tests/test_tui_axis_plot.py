@@ -245,38 +245,38 @@ def test_a_level_line_has_the_dots_of_a_line_stepped_across(value):
     assert np.array_equal(scale.level(value), stepped)
 
 
-async def test_a_dialog_closing_and_its_edit_are_painted_together(monkeypatch):
+async def test_a_cell_editor_closing_and_its_edit_are_painted_together(monkeypatch):
     import threading
 
-    from textual.widgets import Input
-
     import workbench.app as app_module
-    from workbench.tui.screens.edit_value import EditDialog
 
     app = Workbench(load_project(preset_path("tray-lidder")))
     held_when_sent = []
 
     def hook(message) -> None:
         if isinstance(message, ProjectEdited) and not held_when_sent:
-            held_when_sent.append(app.query_one("#axes").holding)
+            view = app.query_one("#axes")
+            held_when_sent.append((view.holding, view.editing))
 
     async with app.run_test(size=(80, 24), message_hook=hook) as pilot:
         await settle(pilot)
         view = app.query_one("#axes")
+        screen = app.screen
         gate = threading.Event()
         compute = app_module.compute_results
         monkeypatch.setattr(app_module, "compute_results", lambda project: gate.wait(10) and compute(project))
         try:
             app.query_one("#segments").move_cursor(row=0, column=2)  # segment 1's span
+            await pilot.press("enter", "1", "0", "0")
+            assert view.editing and view.editor.text == "100" and app.screen is screen
             await pilot.press("enter")
-            await pilot.pause()
-            assert isinstance(app.screen, EditDialog)
-            app.screen.query_one("#value", Input).value = "100"
-            await pilot.press("enter")
-            assert not isinstance(app.screen, EditDialog)
-            assert held_when_sent == [True]  # held from the dialog's closing, before the edit went up
+            # held from the editor's closing, before the edit went up; no other screen came or went
+            assert held_when_sent == [(True, False)] and app.screen is screen
+            assert view.holding and view.results_for is not app.project
         finally:
             gate.set()
         await settle(pilot)
         assert not view.holding and view.results_for is app.project
         assert app.project.axis(LID).segments[0].span == 100.0
+        v = cycloidal_peak_velocity(40.0, 100.0, 120.0)  # 576 mm/s
+        assert f"peak {v:.4g}" in plot(app, "velocity").title

@@ -15,7 +15,7 @@ from textual.widgets import Input
 from workbench.app import Workbench
 from workbench.presets import preset_path
 from workbench.projectfile import load_project
-from workbench.tui.screens.edit_value import EditDialog
+from workbench.tui.views.axes import AxesView
 from workbench.tui.widgets.segment_table import SegmentTable
 
 RENDERING_VARIABLES = ("NO_COLOR", "FORCE_COLOR", "TEXTUAL_COLOR_SYSTEM", "TEXTUAL_THEME",
@@ -79,11 +79,10 @@ def test_span_refused_80x24(snap_compare):
     async def check(pilot):
         await settled(pilot)
         app.query_one(SegmentTable).move_cursor(row=0, column=2)
-        await pilot.press("enter")
-        await pilot.pause()
-        app.screen.query_one("#value", Input).value = "12x"
+        await pilot.press("enter", "1", "2", "x")  # typed over the span cell, in place
         await settled(pilot)
-        assert isinstance(app.screen, EditDialog) and "is not a number" in app.screen.error
+        view = app.query_one(AxesView)
+        assert view.editing and view.editor.text == "12x" and "is not a number" in view.editor.error
 
     assert snap_compare(app, terminal_size=(80, 24), run_before=check)
 

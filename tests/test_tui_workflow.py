@@ -21,9 +21,10 @@ from workbench.editing import law_ids
 from workbench.presets import preset_path
 from workbench.projectfile import dumps, load_project
 from workbench.tui.screens.confirm import ChoiceDialog
-from workbench.tui.screens.edit_value import EditDialog
 from workbench.tui.screens.help import HelpScreen
 from workbench.tui.screens.law_picker import LawPicker
+from workbench.tui.views.axes import AxesView
+from workbench.tui.widgets.cell_editor import CellEditor, CellField, EditNote
 from workbench.tui.widgets.peaks_panel import PeaksPanel
 from workbench.tui.widgets.segment_table import SegmentTable
 
@@ -51,20 +52,43 @@ async def settle(pilot) -> None:
     await pilot.pause()
 
 
-async def open_span_dialog(pilot) -> EditDialog:
+async def open_cell(pilot, row: int, column: int) -> CellEditor:
+    """Enter on a typed cell of the segment table: it opens in place, on the same screen."""
     table = pilot.app.query_one(SegmentTable)
-    table.move_cursor(row=0, column=2)  # segment 1, span
+    table.move_cursor(row=row, column=column)
+    screen = pilot.app.screen
     await pilot.press("enter")
     await pilot.pause()
-    assert isinstance(pilot.app.screen, EditDialog)
-    return pilot.app.screen
+    view = pilot.app.query_one(AxesView)
+    assert pilot.app.screen is screen and view.editing
+    assert pilot.app.focused is table  # the keys keep going through the table
+    return view.editor
+
+
+async def open_span_cell(pilot) -> CellEditor:
+    return await open_cell(pilot, 0, 2)  # segment 1, span
+
+
+async def type_over(pilot, text: str) -> None:
+    """Type over an open cell (it opens with its value selected: the first key replaces it)."""
+    await pilot.press(*list(text))
+    await pilot.pause()
 
 
 async def type_value(pilot, text: str) -> None:
+    """Type into a dialog's value field."""
     field = pilot.app.screen.query_one("#value", Input)
     field.value = ""
     await pilot.press(*list(text))
     await pilot.pause()
+
+
+def note_text(app) -> str:
+    return str(app.query_one(EditNote).content)
+
+
+def footer_keys(app) -> list[str]:
+    return [key.description for key in app.query("FooterKey")]
 
 
 def peaks(app) -> dict:
@@ -78,11 +102,18 @@ async def test_edit_span_in_place_changes_peaks(project_file):
         v, j = cycloidal_peaks(40.0, 90.0, 120.0)
         assert peaks(app)["velocity"]["value"] == f"{v:.0f} mm/s"  # 640 mm/s
         assert peaks(app)["jerk"]["verdict"] == "✗ OVER"
-        dialog = await open_span_dialog(pilot)
-        await type_value(pilot, "120")
-        assert dialog.error is None
+        editor = await open_span_cell(pilot)
+        table = app.query_one(SegmentTable)
+        field = app.query_one(CellField)
+        # the typed value sits on the cell itself: the cell's column and row on screen
+        assert field.region.y == table.region.y + 1  # header, then row 1
+        assert field.region.x == table.region.x + sum(c.get_render_width(table) for c in table.ordered_columns[:2])
+        await type_over(pilot, "120")
+        assert editor.text == "120" and editor.error is None
+        assert "90° → 120°" in note_text(app)  # the change, said before it is made
         await pilot.press("enter")
         await settle(pilot)
+        assert not app.query_one(AxesView).editing and not field.display
         # model: segment 1 now 120°, the 30° came from the dwell after it
         assert [s.span for s in app.project.axis(LID).segments] == [120.0, 120.0, 120.0]
         assert app.history.modified
@@ -99,6 +130,17 @@ async def test_edit_span_in_place_changes_peaks(project_file):
         assert peaks(app)["jerk"]["value"] == f"{j_return:,.0f} mm/s³"
         assert peaks(app)["jerk"]["verdict"] == "✓ within"
         assert "span of segment 1" in app.status_text
+        # undo and redo of the edit made in place
+        await pilot.press("ctrl+z")
+        await settle(pilot)
+        assert [s.span for s in app.project.axis(LID).segments] == [90.0, 150.0, 120.0]
+        assert not app.history.modified
+        assert str(table.get_cell_at((0, 2))) == "90"
+        assert peaks(app)["velocity"]["value"] == "640 mm/s"
+        await pilot.press("ctrl+y")
+        await settle(pilot)
+        assert [s.span for s in app.project.axis(LID).segments] == [120.0, 120.0, 120.0]
+        assert peaks(app)["velocity"]["value"] == f"{v:.0f} mm/s"
 
 
 @pytest.mark.parametrize("typed, reason", [
@@ -111,17 +153,97 @@ async def test_bad_span_refused_where_typed(project_file, typed, reason):
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         before = dumps(app.project)
-        dialog = await open_span_dialog(pilot)
-        await type_value(pilot, typed)
-        assert reason in dialog.error
-        assert reason in str(dialog.query_one("#feedback").content)
-        await pilot.press("enter")  # refused: the dialog stays open
+        editor = await open_span_cell(pilot)
+        await type_over(pilot, typed)
+        assert reason in editor.error
+        assert reason in note_text(app)  # the reason shows under the table, at every key
+        await pilot.press("enter")  # refused: the cell stays open with what was typed
         await pilot.pause()
-        assert app.screen is dialog
+        assert app.query_one(AxesView).editing and editor.text == typed
+        assert dumps(app.project) == before
         await pilot.press("escape")
         await settle(pilot)
+        assert not app.query_one(AxesView).editing
         assert dumps(app.project) == before
         assert not app.history.modified and not app.history.can_undo
+        assert str(app.query_one(SegmentTable).get_cell_at((0, 2))) == "90"
+
+
+async def test_the_difference_goes_to_the_segment_picked_with_up_and_down(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        editor = await open_span_cell(pilot)
+        assert editor.choice == 1 and "2 dwell 150°" in note_text(app)  # the dwell after it, first
+        await type_over(pilot, "100")
+        await pilot.press("down")  # the return gives the 10° instead
+        await pilot.pause()
+        assert editor.choice == 2 and "3 modified-sine 120°" in note_text(app)
+        await pilot.press("enter")
+        await settle(pilot)
+        # hand sum: 90 + 150 + 120 = 360; segment 1 takes 10° from segment 3
+        assert [s.span for s in app.project.axis(LID).segments] == [100.0, 150.0, 110.0]
+        assert str(app.query_one(SegmentTable).get_cell_at((2, 2))) == "110"
+
+
+async def test_end_position_and_time_are_typed_in_place(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        editor = await open_cell(pilot, 0, 3)  # segment 1's end position, 40 mm
+        assert editor.text == "40"
+        await type_over(pilot, "45")
+        await pilot.press("enter")
+        await settle(pilot)
+        assert app.project.axis(LID).segments[0].to == 45.0
+        v, _ = cycloidal_peaks(45.0, 90.0, 120.0)  # 720 mm/s
+        assert peaks(app)["velocity"]["value"] == f"{v:.0f} mm/s"
+        editor = await open_cell(pilot, 0, 4)  # segment 1's time, 125 ms at 120 cycles/min
+        assert editor.text == "125"
+        await type_over(pilot, "100")
+        await pilot.press("enter")
+        await settle(pilot)
+        # 100 ms of a 500 ms cycle (120 cycles/min) is 72°; the dwell after it gives the 18°
+        assert [s.span for s in app.project.axis(LID).segments] == [72.0, 168.0, 120.0]
+        assert str(app.query_one(SegmentTable).get_cell_at((0, 4))) == "100.0"
+        await pilot.press("ctrl+z", "ctrl+z")
+        await settle(pilot)
+        assert not app.history.modified
+
+
+async def test_a_dwell_has_no_end_position_to_type(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        app.query_one(SegmentTable).move_cursor(row=1, column=3)  # segment 2, a dwell
+        await pilot.press("enter")
+        await pilot.pause()
+        assert not app.query_one(AxesView).editing
+        assert "is a dwell" in app.status_text and app.status_text.startswith("✗")
+
+
+async def test_editing_a_cell_by_keys_alone_at_80x24(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        assert "Edit" in footer_keys(app)
+        await pilot.press("right", "right", "enter")  # from the law column of row 1 to its span
+        await pilot.pause()
+        view = app.query_one(AxesView)
+        assert view.editing and view.editor.text == "90"
+        await settle(pilot)
+        assert footer_keys(app)[:2] == ["Apply", "Cancel"] and "Add" not in footer_keys(app)
+        await pilot.press("end", "backspace", "5", "home", "2")  # "90" → "9" → "95" → "295"
+        await pilot.pause()
+        assert view.editor.text == "295" and "cannot give" in view.editor.error  # the dwell has 150°
+        await pilot.press("home", "delete", "tab", "end", "a")  # "95", and tab does not take the keys away
+        await pilot.pause()
+        assert view.editor.text == "95a" and "is not a number" in view.editor.error
+        await pilot.press("backspace", "enter")
+        await settle(pilot)
+        assert not view.editing and app.project.axis(LID).segments[0].span == 95.0
+        assert "Edit" in footer_keys(app) and "Apply" not in footer_keys(app)
+        assert app.focused is app.query_one(SegmentTable)
 
 
 async def test_law_list_shows_coefficients_and_refuses_what_breaks_the_axis(project_file):
@@ -217,8 +339,8 @@ async def test_save_reopen_and_compare_file(project_file, tmp_path):
     app = Workbench(load_project(project_file))
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        await open_span_dialog(pilot)
-        await type_value(pilot, "100")
+        await open_span_cell(pilot)
+        await type_over(pilot, "100")
         await pilot.press("enter")
         await settle(pilot)
         await pilot.press("ctrl+s")

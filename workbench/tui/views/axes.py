@@ -11,6 +11,15 @@ A new state and its numbers reach the screen in one update: from
 the edit's table would take one update and the plots and peaks another,
 and Textual paints its second update after an idle spell one to two
 frames after the first.
+
+The typed cells (span, end position, time) are edited in place
+(`widgets.cell_editor`): the value is typed over the cell while the focus
+stays on the table, and the view hands the editor its keys.  A focus change
+would rebuild the footer and lay out the whole screen, and a dialog screen
+closing repaints all of it, each as long as the edit itself takes; in place,
+closing the editor is the only change besides the edit.  The footer shows
+the editor's keys while it is open and the view's again once the edit is on
+screen.
 """
 
 from __future__ import annotations
@@ -18,9 +27,11 @@ from __future__ import annotations
 from typing import Callable
 
 from rich.text import Text
+from textual import events
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.widgets import Static
+from textual.geometry import Region
+from textual.widgets import DataTable, Static
 
 from ... import editing
 from ...editing import EditError
@@ -29,6 +40,7 @@ from ..compute import AxisResult
 from ..format import axis_verdict, number
 from ..messages import ProjectEdited, Status
 from ..widgets.axis_plots import PlotPanel
+from ..widgets.cell_editor import CellEdit, CellEditor, CellField, EditNote
 from ..widgets.peaks_panel import PeaksPanel
 from ..widgets.segment_table import SegmentTable
 from . import axes_dialogs as dialogs
@@ -36,6 +48,9 @@ from .axis_rename import start_rename
 from .base import WorkbenchView
 
 HOLD_S = 0.1  # the longest a new state waits for its numbers before it is painted alone (s)
+IN_PLACE = ("span", "ends", "time")  # table columns whose cells are typed over in place
+EDITOR_ACTIONS = ("apply_edit", "cancel_edit")  # the view's actions while a cell is edited
+KEPT_FOCUS = ("tab", "shift+tab")  # keys that would move the focus away: an open editor swallows them
 
 
 class AxisBar(Static):
@@ -48,9 +63,18 @@ class AxesView(WorkbenchView):
     view_id = "axes"
     title = "Axes"
 
+    DEFAULT_CSS = """
+    AxesView { layers: default editor; }
+    """
+
     BINDINGS = [
         Binding("enter", "edit_cell", "Edit", priority=True,
                 tooltip="Edit the cell under the cursor: law, span, end position or time", id="edit"),
+        Binding("enter", "apply_edit", "Apply", priority=True,
+                tooltip="Apply the value typed in the cell (a refused value stays, with the reason)",
+                id="apply"),
+        Binding("escape", "cancel_edit", "Cancel", tooltip="Close the cell being edited; nothing changes",
+                id="cancel"),
         Binding("l", "law", "Law", show=False, tooltip="Choose the law of the segment from the list with Cv, Ca, Cj"),
         Binding("a", "add", "Add", tooltip="Insert a segment after this one; its span comes from another"),
         Binding("d,delete", "delete", "Del", tooltip="Delete the segment; a neighbouring dwell takes its span"),
@@ -85,16 +109,29 @@ class AxesView(WorkbenchView):
         self._held = None
         """The screen-update batch held until the numbers come (None: not holding)."""
         self._hold_timer = None
+        self.editor: CellEditor | None = None
+        """The in-place editor of the table's typed cells."""
+        self._edit_note = ""
+        """The note of the edit open in place (for undo and the status line)."""
+        self._footer_stale = False
+        """True when the footer still shows the editor's keys after it closed with an edit."""
 
     def compose(self) -> ComposeResult:
         yield AxisBar(id="axis-bar")
         yield SegmentTable(id="segments")
         yield PeaksPanel(id="peaks")
         yield PlotPanel(id="plots")
+        yield CellField(id="cell-field")
+        yield EditNote(id="edit-note")
+
+    def on_mount(self) -> None:
+        self.editor = CellEditor(self.query_one(CellField), self.query_one(EditNote))
 
     # --- state down ---------------------------------------------------------
 
     def show_project(self, project: Project) -> None:
+        if self.editing and project is not self.project:
+            self._close_editor()  # it was built on the state before (an undo, say)
         if project is not self.results_for:
             self._hold()
         self.project = project
@@ -130,11 +167,15 @@ class AxesView(WorkbenchView):
         self._hold_timer.stop()
         held.__exit__(None, None, None)
         self.screen.check_idle()
+        if self._footer_stale:  # relabelled once the edit is on screen, not before
+            self._footer_stale = False
+            self.call_after_refresh(self.refresh_bindings)
 
     def on_unmount(self) -> None:
         self._release()
 
     def select_axis(self, name: str) -> None:
+        self._close_editor()
         self.axis_name = name
         self._refresh_axis()
 
@@ -226,14 +267,106 @@ class AxesView(WorkbenchView):
     def action_edit_cell(self) -> None:
         column = self.query_one(SegmentTable).column_key
         p, name, i = self.project, self.axis_name, self._index
-        builders = {
-            "number": lambda: dialogs.law_dialog(p, name, i),
-            "law": lambda: dialogs.law_dialog(p, name, i),
-            "span": lambda: dialogs.span_dialog(p, name, i),
-            "ends": lambda: dialogs.to_dialog(p, name, i),
-            "time": lambda: dialogs.time_dialog(p, name, i),
-        }
-        self._open(builders[column])
+        if column in IN_PLACE:
+            builders = {"span": dialogs.span_edit, "ends": dialogs.end_edit, "time": dialogs.time_edit}
+            self._edit_in_place(lambda: builders[column](p, name, i))
+        else:
+            self._open(lambda: dialogs.law_dialog(p, name, i))
+
+    # --- cells edited in place ----------------------------------------------
+
+    @property
+    def editing(self) -> bool:
+        """True while a cell of the table is being typed over."""
+        return self.editor is not None and self.editor.is_open
+
+    def _edit_in_place(self, build: Callable[[], tuple[CellEdit, str]]) -> None:
+        if self.project is None or self.axis_name is None:
+            return
+        try:
+            edit, note = build()
+        except EditError as exc:
+            self.post_message(Status(exc.message, error=True))
+            self.app.bell()
+            return
+        table = self.query_one(SegmentTable)
+        table.focus()  # the keys come through the table, so they must go to it
+        self._edit_note = note
+        self.editor.open(edit, *self._editor_place(table))
+        self.refresh_bindings()
+
+    def _editor_place(self, table: SegmentTable) -> tuple[Region, int]:
+        """Where the editor goes: the cell under the cursor, and the line under the table."""
+        return self._cell_region(table), table.region.bottom - self.content_region.y
+
+    def _cell_region(self, table: SegmentTable) -> Region:
+        """The cell under the table's cursor, in this view's coordinates."""
+        row, column = table.cursor_coordinate
+        columns = table.ordered_columns
+        x = sum(c.get_render_width(table) for c in columns[:column])
+        y = sum(r.height for r in table.ordered_rows[:row]) + (table.header_height if table.show_header else 0)
+        origin = table.content_region.offset - self.content_region.offset - table.scroll_offset
+        return Region(origin.x + x, origin.y + y, columns[column].get_render_width(table), 1)
+
+    def _close_editor(self) -> None:
+        if self.editing:
+            self.editor.close()
+            self.refresh_bindings()
+
+    def action_apply_edit(self) -> None:
+        """Enter in an open cell: the edit goes up with the editor's closing, or the reason stays."""
+        if not self.editing:
+            return
+        project = self.editor.result
+        if project is None:
+            self.app.bell()  # refused: the reason is on view under the cell
+            return
+        self.editor.close()
+        self._footer_stale = True
+        self._hold()  # the editor closing and the edit reach the screen together
+        self.post_message(ProjectEdited(project, self._edit_note))
+
+    def action_cancel_edit(self) -> None:
+        self._close_editor()
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        """While a cell is edited only its keys act here; otherwise only they do not."""
+        return (action in EDITOR_ACTIONS) == self.editing
+
+    def on_key(self, event: events.Key) -> None:
+        """An open editor takes the keys that edit its line; the rest go on to the bindings as
+        usual (save, undo, help ...; one that moves the cursor or changes the project closes it)."""
+        if not self.editing:
+            return
+        if event.key == "escape":
+            self.action_cancel_edit()
+        elif event.is_printable and event.character:
+            self.editor.type(event.character)
+        elif not self.editor.key(event.key) and event.key not in KEPT_FOCUS:
+            return
+        event.stop()
+        event.prevent_default()
+
+    def on_paste(self, event: events.Paste) -> None:
+        if self.editing:
+            self.editor.type(event.text)
+            event.stop()
+
+    def on_data_table_cell_highlighted(self, event: DataTable.CellHighlighted) -> None:
+        if self.editing:
+            self._close_editor()  # the cursor left the cell (a click, a page key)
+
+    def on_descendant_blur(self, event: events.DescendantBlur) -> None:
+        if self.editing and isinstance(event.widget, SegmentTable):
+            self._close_editor()
+
+    def on_resize(self, event: events.Resize) -> None:
+        if self.editing:  # the cell moves with the table: follow it once the table is laid out
+            self.call_after_refresh(self._follow_cell)
+
+    def _follow_cell(self) -> None:
+        if self.editing:
+            self.editor.place(*self._editor_place(self.query_one(SegmentTable)))
 
     def action_law(self) -> None:
         self._open(lambda: dialogs.law_dialog(self.project, self.axis_name, self._index))

@@ -1,7 +1,9 @@
-"""Dialogs of the Axes view, each wired to one pure edit of `workbench.editing`.
+"""Edits of the Axes view, each wired to one pure edit of `workbench.editing`.
 
-Every function returns a screen whose result is the edited project (or None),
-plus the note that names the edit for undo and the status line.
+A typed cell of the segment table (span, end position, time) is edited in
+place: its function returns a `CellEdit`.  The others return a dialog screen
+whose result is the edited project (or None).  Each also returns the note
+that names the edit for undo and the status line.
 """
 
 from __future__ import annotations
@@ -18,6 +20,7 @@ from ..screens.add_segment import AddSegmentDialog
 from ..screens.edit_value import EditDialog
 from ..screens.law_picker import LawPicker
 from ..screens.limits import LimitsDialog
+from ..widgets.cell_editor import CellEdit
 
 DEGREE_UNITS = ("deg", "°")
 
@@ -59,26 +62,28 @@ def _choices(project: Project, axis_name: str, skip: int | None) -> list[tuple[s
     return [(f"{i + 1} {s.law} {s.span:g}°", i) for i, s in enumerate(axis.segments) if i != skip]
 
 
-def span_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen, str]:
+DONOR_PROMPT = "the difference is taken from / given to"
+
+
+def span_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, str]:
     axis = project.axis(axis_name)
     seg = axis.segments[index]
-    donor = editing.default_donor(axis, index)
 
     def attempt(text, choice):
         span = parse_number(text, "span", positive=True, units=DEGREE_UNITS)
         return editing.set_span(project, axis_name, index, span, choice)
 
-    screen = EditDialog(
-        f"Span of segment {index + 1} ({seg.law}), axis {axis_name}",
-        "span [deg] — spans sum to 360°, so another segment gives or takes the difference:",
+    edit = CellEdit(
+        f"span of segment {index + 1} ({seg.law}), axis {axis_name}",
+        "span [deg] — the spans of an axis sum to 360°",
         f"{seg.span:g}", attempt, lambda p: describe(project, p, axis_name),
-        choices=_choices(project, axis_name, index) or None,
-        choice_prompt="difference taken from / given to", choice=donor,
+        choices=tuple(_choices(project, axis_name, index)), choice_prompt=DONOR_PROMPT,
+        choice=editing.default_donor(axis, index),
     )
-    return screen, f"span of segment {index + 1}"
+    return edit, f"span of segment {index + 1}"
 
 
-def time_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen, str]:
+def time_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, str]:
     axis = project.axis(axis_name)
     seg = axis.segments[index]
     ms = seg.span / 360.0 * 60_000.0 / project.speed
@@ -87,17 +92,17 @@ def time_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScre
         value = parse_number(text, "time", positive=True, units=("ms",))
         return editing.set_duration(project, axis_name, index, value / 1000.0, choice)
 
-    screen = EditDialog(
-        f"Time of segment {index + 1} ({seg.law}) at {number(project.speed, 'cycles/min')}",
-        "time [ms] — sets the span at the machine speed; another segment gives or takes the difference:",
+    edit = CellEdit(
+        f"time of segment {index + 1} ({seg.law}) at {number(project.speed, 'cycles/min')}",
+        "time [ms] — sets the span at the machine speed; the spans sum to 360°",
         f"{ms:.4g}", attempt, lambda p: describe(project, p, axis_name),
-        choices=_choices(project, axis_name, index) or None,
-        choice_prompt="difference taken from / given to", choice=editing.default_donor(axis, index),
+        choices=tuple(_choices(project, axis_name, index)), choice_prompt=DONOR_PROMPT,
+        choice=editing.default_donor(axis, index),
     )
-    return screen, f"time of segment {index + 1}"
+    return edit, f"time of segment {index + 1}"
 
 
-def to_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen, str]:
+def end_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, str]:
     axis = project.axis(axis_name)
     seg = axis.segments[index]
     start, end = segment_ends(axis)[index]
@@ -108,13 +113,13 @@ def to_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen
     def attempt(text, _choice):
         return editing.set_to(project, axis_name, index, parse_number(text, "to", units=(axis.unit,)))
 
-    screen = EditDialog(
-        f"End position of segment {index + 1} ({seg.law}), axis {axis_name}",
+    edit = CellEdit(
+        f"end position of segment {index + 1} ({seg.law}), axis {axis_name}",
         f"to [{axis.unit}] — it starts at {number(start, axis.unit)}; the last segment must end "
-        f"at the axis start{' + index' if axis.index else ''}:",
+        f"at the axis start{' + index' if axis.index else ''}",
         f"{end:g}", attempt, lambda p: describe(project, p, axis_name),
     )
-    return screen, f"end position of segment {index + 1}"
+    return edit, f"end position of segment {index + 1}"
 
 
 def law_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen, str]:
