@@ -1,9 +1,10 @@
 """Edit → plots and peaks on screen, measured through the running workbench (Textual pilot).
 
 One edit (segment 1's span of the lid lift, alternating 90° ↔ 100°) is sent
-to the app as a view would send it; then the same edit is typed into the
-span dialog and the clock starts at Enter (the dialog closes, the screen
-under it comes back, the edit follows).  The clock stops at the end of the
+to the app as a view would send it; then the same edit is made as a user
+makes it: Enter on the span cell, the value typed over the cell, and the
+clock starts at the Enter that applies it (the cell editor closes, the edit
+follows).  The clock stops at the end of the
 screen update (compositor pass) in which the peaks panel and every plot on
 view were painted with the new numbers — not when the numbers arrive, nor
 when a plot has only prepared its drawing.  Each axis is sampled at 3,600
@@ -114,11 +115,12 @@ def _watch_paint(widget, fresh) -> None:
 painted_for: dict[int, object] = {}  # id(painter) → the widget it paints for
 
 
-async def measure(size: tuple[int, int], dialog: bool = False) -> list[tuple[float, float, float]]:
+async def measure(size: tuple[int, int], typed: bool = False) -> list[tuple[float, float, float]]:
     """(edit → on screen, edit → numbers on the view, UI thread CPU) in ms for each edit after warm-up.
 
-    `dialog`: the edit is typed into the span dialog and the clock starts at Enter (the dialog
-    closes and the edit follows); otherwise the edit is posted as a view posts it."""
+    `typed`: the edit is typed over the span cell and the clock starts at the Enter that applies
+    it (the cell editor closes and the edit follows); otherwise the edit is posted as a view
+    posts it."""
     project = load_project(preset_path("tray-lidder"))
     app = Workbench(project)
     out = []
@@ -135,22 +137,21 @@ async def measure(size: tuple[int, int], dialog: bool = False) -> list[tuple[flo
         _watch_paint(peaks, lambda: watch.fresh(axes) and peaks.result is axes.result)
         for i in range(WARM_UP + EDITS):
             span = 100.0 if i % 2 == 0 else 90.0
-            if dialog:
+            if typed:
                 app.query_one("#segments").move_cursor(row=0, column=2)
-                await pilot.press("enter")
+                await pilot.press("enter", *f"{span:g}")
                 await pilot.pause()
-                app.screen.query_one("#value").value = f"{span:g}"
-                await pilot.pause()
+                assert axes.editing and axes.editor.text == f"{span:g}"
                 await asyncio.sleep(QUIET_S)
             visible = [p for p in plots if p.display and p.size.width]
             watch.start(app.project, [peaks, *visible])
             t0, cpu0 = time.perf_counter(), time.thread_time()
-            if dialog:
+            if typed:
                 pressed = asyncio.create_task(pilot.press("enter"))
             else:
                 app.post_message(ProjectEdited(editing.set_span(app.project, LID, 0, span), "bench"))
             await asyncio.wait_for(watch.done.wait(), timeout=10.0)
-            if dialog:
+            if typed:
                 await pressed
             if i >= WARM_UP:
                 out.append(((watch.t_done - t0) * 1e3, (watch.t_results - t0) * 1e3,
@@ -183,12 +184,12 @@ def main() -> None:
     _patch_app()
     print(f"edit → plots and peaks on screen, {POINTS_PER_CYCLE} points per axis (target {TARGET_MS:.0f} ms)")
     worker_alone()
-    for size, what, dialog in (((80, 24), "one plot", False), ((120, 40), "four plots", False),
-                               ((80, 24), "one plot, via the span dialog", True),
-                               ((120, 40), "four plots, via the span dialog", True)):
+    for size, what, typed in (((80, 24), "one plot", False), ((120, 40), "four plots", False),
+                               ((80, 24), "one plot, typed over the span cell", True),
+                               ((120, 40), "four plots, typed over the span cell", True)):
         edits = []
         for _ in range(runs):
-            edits += asyncio.run(measure(size, dialog))
+            edits += asyncio.run(measure(size, typed))
         total = [t for t, _, _ in edits]
         numbers = statistics.median(n for _, n, _ in edits)
         paint = statistics.median(t - n for t, n, _ in edits)
