@@ -18,6 +18,7 @@ An angle is linear in q, so its γ and η are zero.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import ClassVar
 
 import numpy as np
 
@@ -144,83 +145,72 @@ class BodyAngle(Coordinate):
 
 
 @dataclass(frozen=True)
-class PointX(Coordinate):
-    """Machine x (m) of `point` = (body, point)."""
+class PointCoordinate(Coordinate):
+    """Machine x or y (m) of `point` = (body, point): the formulas of the module docstring, once.
+
+    A subclass sets AXIS (0: x, 1: y).  With a = A s' the point's rotated
+    offset, `along` is a's component on that axis and `across` the matching
+    component of perp(a) (−a_y for x, a_x for y), so that
+    Φq = [e, across], γ = along ω², η = 3 along ω α + across ω³.
+    """
 
     point: tuple[str, str]
     name: str = ""
 
     UNIT = "m"
     ROW_UNITS = (LENGTH,)
+    AXIS: ClassVar[int] = 0
+    SUFFIX: ClassVar[tuple[str, str]] = (".x", ".y")
+    UNIT_ROW: ClassVar[tuple[tuple[float, float], tuple[float, float]]] = ((1.0, 0.0), (0.0, 1.0))  # ∂/∂(x, y) of the body
 
     def __post_init__(self):
         if not self.name:
-            object.__setattr__(self, "name", ".".join(map(str, self.point)) + ".x")
+            object.__setattr__(self, "name", ".".join(map(str, self.point)) + self.SUFFIX[self.AXIS])
 
     def bind(self, model) -> Binding:
         s = model.point(self.point, self.name, "point")
         return Binding((self.point[0],), {"s": s})
 
     @classmethod
+    def _parts(cls, p, local):
+        """(origin, along, across) of body pose p for the local point `local`."""
+        ax, ay = p.rotate(local)
+        return (p.x, ax, -ay) if cls.AXIS == 0 else (p.y, ay, ax)
+
+    @classmethod
     def residual(cls, par, p):
-        ax, _ = p.rotate(par["s"])
-        return [p.x + ax]
+        origin, along, _ = cls._parts(p, par["s"])
+        return [origin + along]
 
     @classmethod
     def jacobian(cls, par, p):
-        ax, ay = p.rotate(par["s"])
-        return [[1.0, 0.0, -ay]]
+        _, _, across = cls._parts(p, par["s"])
+        return [[*cls.UNIT_ROW[cls.AXIS], across]]
 
     @classmethod
     def gamma(cls, par, poses, rates):
-        ax, _ = poses[0].rotate(par["s"])
-        return [ax * rates[0].phi ** 2]
+        _, along, _ = cls._parts(poses[0], par["s"])
+        return [along * rates[0].phi ** 2]
 
     @classmethod
     def eta(cls, par, poses, rates, accels):
-        ax, ay = poses[0].rotate(par["s"])
+        _, along, across = cls._parts(poses[0], par["s"])
         w, al = rates[0].phi, accels[0].phi
-        return [3.0 * ax * w * al - ay * w**3]
+        return [3.0 * along * w * al + across * w**3]
 
 
 @dataclass(frozen=True)
-class PointY(Coordinate):
+class PointX(PointCoordinate):
+    """Machine x (m) of `point` = (body, point)."""
+
+    AXIS = 0
+
+
+@dataclass(frozen=True)
+class PointY(PointCoordinate):
     """Machine y (m) of `point` = (body, point)."""
 
-    point: tuple[str, str]
-    name: str = ""
-
-    UNIT = "m"
-    ROW_UNITS = (LENGTH,)
-
-    def __post_init__(self):
-        if not self.name:
-            object.__setattr__(self, "name", ".".join(map(str, self.point)) + ".y")
-
-    def bind(self, model) -> Binding:
-        s = model.point(self.point, self.name, "point")
-        return Binding((self.point[0],), {"s": s})
-
-    @classmethod
-    def residual(cls, par, p):
-        _, ay = p.rotate(par["s"])
-        return [p.y + ay]
-
-    @classmethod
-    def jacobian(cls, par, p):
-        ax, _ = p.rotate(par["s"])
-        return [[0.0, 1.0, ax]]
-
-    @classmethod
-    def gamma(cls, par, poses, rates):
-        _, ay = poses[0].rotate(par["s"])
-        return [ay * rates[0].phi ** 2]
-
-    @classmethod
-    def eta(cls, par, poses, rates, accels):
-        ax, ay = poses[0].rotate(par["s"])
-        w, al = rates[0].phi, accels[0].phi
-        return [3.0 * ay * w * al + ax * w**3]
+    AXIS = 1
 
 
 @dataclass(frozen=True)
