@@ -37,6 +37,7 @@ CONSTANT_TOLERANCE = 1e-13  # entries equal across samples to this are constant
 MIN_CONSTANT_PIVOT = 0.5  # smallest constant entry worth pivoting on (pins give 1)
 TINY = 1e-300  # guards a division when a pivot is exactly zero (singular matrix)
 FEW_ENTRIES = 4  # a fill-in update over at most this many entries runs row by row (fewer calls than gathers)
+WHOLE_ROWS_FROM = 1024  # instants: from this many on, pivot rows are found by comparing whole rows, not argmax
 
 
 @dataclass
@@ -347,19 +348,18 @@ class SparseFactor:
         self.rest_col_scale = col_scale[C][:, None]
         S = V[plan.rest_slots] * (self.rest_row_scale[:, :, None] * self.rest_col_scale[None, :, :])
         r = len(R)
-        perm = np.empty((r, N), dtype=np.intp)
-        perm[:] = np.arange(r)[:, None]
-        self.instants = instants = np.arange(N)  # for per-instant fancy indexing
+        order = np.arange(r * N).reshape(r, N)  # flat index (row · N + instant) of each row, kept in pivot order
         swapped = False
         smallest = np.full(N, np.inf)
         largest = np.ones(N)  # constant pivots are 1 in magnitude
         for k in range(r):
             if k + 1 < r:
-                rel = np.abs(S[k:, k, :]).argmax(axis=0)  # pivot row per instant, counted from row k
+                rel = _pivot_rows(S[k:, k, :])  # pivot row per instant, counted from row k
                 if rel.any():
                     swapped = True
-                    _swap_rows(S, k, rel, instants)
-                    _swap_rows(perm, k, rel, instants)
+                    masks = [rel == i for i in range(1, r - k)]
+                    _exchange_rows(S, k, masks)
+                    _exchange_rows(order, k, masks)
                     np.negative(det_sign, out=det_sign, where=rel != 0)
             pivot = S[k, k]
             det_sign *= np.sign(pivot)
@@ -371,7 +371,7 @@ class SparseFactor:
                     S[k + 1 :, k] /= np.where(pivot == 0.0, TINY, pivot)
                 S[k + 1 :, k + 1 :] -= S[k + 1 :, k, None, :] * S[k, None, k + 1 :, :]
         self.S = S
-        self.gather = (perm * N + instants).ravel() if swapped else None  # rows in pivot order, per instant
+        self.gather = order.ravel() if swapped else None  # rows in pivot order, per instant
         self.det_sign = det_sign
         # back substitution reads the same pivot rows for every right-hand side: gather them once
         self.back = [
@@ -432,20 +432,37 @@ class SparseFactor:
         return out
 
 
-def _swap_rows(A: np.ndarray, k: int, rel: np.ndarray, instants: np.ndarray) -> None:
-    """Exchange row k of A (rows first, instants last) with row k + rel, instant by instant (rel (N,) ≥ 0).
+def _pivot_rows(column: np.ndarray) -> np.ndarray:
+    """argmax over rows of |column| (rows, N) per instant: the first of equal largest, as argmax gives it.
 
-    The pivot rows are gathered once; the rows they leave take row k by
-    masked copies, which run over contiguous instants.  `instants` is
-    arange(N).
+    Over many instants numpy's argmax along the first axis runs one tiny
+    search per instant, so there the rows are compared as whole arrays.
     """
-    if A.ndim == 3:
-        chosen = A[k:][rel, :, instants].T  # (N, columns) gathered, seen as (columns, N)
-    else:
-        chosen = A[k:][rel, instants]
-    for i in range(1, A.shape[0] - k):
-        np.copyto(A[k + i], A[k], where=rel == i)
-    A[k] = chosen
+    size = np.abs(column)
+    if column.shape[1] < WHOLE_ROWS_FROM:
+        return size.argmax(axis=0)
+    best = size[0]
+    rel = None
+    for i in range(1, size.shape[0]):
+        better = size[i] > best  # strictly: a tie keeps the earlier row
+        if rel is None:
+            rel = better.astype(np.intp)
+        else:
+            rel[better] = i
+        if i + 1 < size.shape[0]:
+            best = np.maximum(best, size[i])
+    return rel
+
+
+def _exchange_rows(A: np.ndarray, k: int, masks: list) -> None:
+    """Exchange row k of A (rows first, instants last) with row k + i where masks[i − 1] (N,) holds.
+
+    The masks exclude each other; masked copies run over contiguous instants.
+    """
+    old = A[k].copy()
+    for i, mask in enumerate(masks, 1):
+        np.copyto(A[k], A[k + i], where=mask)
+        np.copyto(A[k + i], old, where=mask)
 
 
 SPARSE_FROM = 64  # instants: from this many on, the planned elimination beats stacked LAPACK
