@@ -3,7 +3,7 @@ PYTHON ?= python3
 VENV   := .venv
 BIN    := $(VENV)/bin
 
-.PHONY: run test bench clean
+.PHONY: run test test-quick bench clean
 
 $(BIN)/python:
 	$(PYTHON) -m venv $(VENV)
@@ -18,6 +18,10 @@ run: $(VENV)/.installed
 
 test: $(VENV)/.installed
 	$(BIN)/python -m pytest
+
+# Everything but the terminal-UI pilot tests (they take most of the full run's time).
+test-quick: $(VENV)/.installed
+	$(BIN)/python -m pytest -q --ignore-glob='tests/test_tui_*'
 
 bench: $(VENV)/.installed
 	for f in benchmarks/bench_*.py; do $(BIN)/python $$f; done
