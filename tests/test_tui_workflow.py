@@ -211,6 +211,23 @@ async def test_end_position_and_time_are_typed_in_place(project_file):
         assert not app.history.modified
 
 
+async def test_enter_on_an_untouched_cell_changes_nothing(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        editor = await open_cell(pilot, 2, 4)  # the return's time: 120° of a 500 ms cycle, 166.67 ms
+        assert editor.text == "166.7" and "no change" in note_text(app)  # shown rounded, stands for 120°
+        await pilot.press("enter")
+        await settle(pilot)
+        assert not app.query_one(AxesView).editing
+        assert [s.span for s in app.project.axis(LID).segments] == [90.0, 150.0, 120.0]
+        assert not app.history.can_undo
+        editor = await open_cell(pilot, 2, 4)
+        await type_over(pilot, "166.8")  # 166.8 ms of a 500 ms cycle is 120.096°
+        assert "120° → 120.096°" in note_text(app)
+        await pilot.press("escape")
+
+
 async def test_a_dwell_has_no_end_position_to_type(project_file):
     app = Workbench(load_project(project_file))
     async with app.run_test(size=SIZE) as pilot:

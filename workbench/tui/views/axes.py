@@ -321,6 +321,9 @@ class AxesView(WorkbenchView):
         if project is None:
             self.app.bell()  # refused: the reason is on view under the cell
             return
+        if self.editor.unchanged:  # nothing to do, nothing to undo
+            self._close_editor()
+            return
         self.editor.close()
         self._footer_stale = True
         self._hold()  # the editor closing and the edit reach the screen together

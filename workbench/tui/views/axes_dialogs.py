@@ -65,18 +65,26 @@ def _choices(project: Project, axis_name: str, skip: int | None) -> list[tuple[s
 DONOR_PROMPT = "the difference is taken from / given to"
 
 
+def _typed(text: str, shown: str, exact: float, what: str, **rules) -> float:
+    """The number typed; the value as shown (rounded) stands for the exact one it was shown
+    from, so Enter on an untouched cell changes nothing."""
+    value = parse_number(text, what, **rules)
+    return exact if text.strip() == shown else value
+
+
 def span_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, str]:
     axis = project.axis(axis_name)
     seg = axis.segments[index]
+    shown = f"{seg.span:g}"
 
     def attempt(text, choice):
-        span = parse_number(text, "span", positive=True, units=DEGREE_UNITS)
+        span = _typed(text, shown, seg.span, "span", positive=True, units=DEGREE_UNITS)
         return editing.set_span(project, axis_name, index, span, choice)
 
     edit = CellEdit(
         f"span of segment {index + 1} ({seg.law}), axis {axis_name}",
         "span [deg] — the spans of an axis sum to 360°",
-        f"{seg.span:g}", attempt, lambda p: describe(project, p, axis_name),
+        shown, attempt, lambda p: describe(project, p, axis_name),
         choices=tuple(_choices(project, axis_name, index)), choice_prompt=DONOR_PROMPT,
         choice=editing.default_donor(axis, index),
     )
@@ -87,15 +95,16 @@ def time_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, s
     axis = project.axis(axis_name)
     seg = axis.segments[index]
     ms = seg.span / 360.0 * 60_000.0 / project.speed
+    shown = f"{ms:.4g}"
 
     def attempt(text, choice):
-        value = parse_number(text, "time", positive=True, units=("ms",))
+        value = _typed(text, shown, ms, "time", positive=True, units=("ms",))
         return editing.set_duration(project, axis_name, index, value / 1000.0, choice)
 
     edit = CellEdit(
         f"time of segment {index + 1} ({seg.law}) at {number(project.speed, 'cycles/min')}",
         "time [ms] — sets the span at the machine speed; the spans sum to 360°",
-        f"{ms:.4g}", attempt, lambda p: describe(project, p, axis_name),
+        shown, attempt, lambda p: describe(project, p, axis_name),
         choices=tuple(_choices(project, axis_name, index)), choice_prompt=DONOR_PROMPT,
         choice=editing.default_donor(axis, index),
     )
@@ -110,14 +119,16 @@ def end_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, st
         raise EditError(f"segment {index + 1} is a dwell: it holds {number(start, axis.unit)}; "
                         "change its law (l) to make it move")
 
+    shown = f"{end:g}"
+
     def attempt(text, _choice):
-        return editing.set_to(project, axis_name, index, parse_number(text, "to", units=(axis.unit,)))
+        return editing.set_to(project, axis_name, index, _typed(text, shown, end, "to", units=(axis.unit,)))
 
     edit = CellEdit(
         f"end position of segment {index + 1} ({seg.law}), axis {axis_name}",
         f"to [{axis.unit}] — it starts at {number(start, axis.unit)}; the last segment must end "
         f"at the axis start{' + index' if axis.index else ''}",
-        f"{end:g}", attempt, lambda p: describe(project, p, axis_name),
+        shown, attempt, lambda p: describe(project, p, axis_name),
     )
     return edit, f"end position of segment {index + 1}"
 

@@ -158,6 +158,11 @@ class CellEditor:
     def text(self) -> str:
         return self.field.line.text
 
+    @property
+    def unchanged(self) -> bool:
+        """The value is as it was shown (whoever would give or take a difference of nothing)."""
+        return self.text.strip() == self.edit.value.strip()
+
     def open(self, edit: CellEdit, cell: Region, note_y: int) -> None:
         """Start editing `edit` over `cell`, the note from line `note_y` down (both in the
         coordinates of the editor's parent)."""
