@@ -346,7 +346,8 @@ class SparseFactor:
         R, C = plan.rest_rows, plan.rest_cols
         self.rest_row_scale = row_scale[R][:, None]
         self.rest_col_scale = col_scale[C][:, None]
-        S = V[plan.rest_slots] * (self.rest_row_scale[:, :, None] * self.rest_col_scale[None, :, :])
+        S = V[plan.rest_slots]  # a new (r, r, N) array, scaled in place
+        S *= self.rest_row_scale[:, :, None] * self.rest_col_scale[None, :, :]
         r = len(R)
         order = np.arange(r * N).reshape(r, N)  # flat index (row · N + instant) of each row, kept in pivot order
         swapped = False
