@@ -402,6 +402,12 @@ async def test_a_size_the_cam_cannot_take_is_refused_in_the_dialog(press_file):
         await pilot.press("escape")
         await settle(pilot)
         assert app.project is before and not app.history.can_undo and not app.history.modified
+        dialog = await open_size(pilot, "a")  # enter on the value as it was: no edit, no undo step
+        assert dialog.query_one("#value", Input).value == "60"
+        await pilot.press("enter")
+        await settle(pilot)
+        assert app.project is before and not app.history.can_undo
+        assert app.status_text == "cam stamp-cam: prime_radius: unchanged"
 
 
 async def test_a_size_edit_is_undone_in_one_step_and_an_optional_one_can_go(press_file):

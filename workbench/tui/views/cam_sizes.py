@@ -18,7 +18,7 @@ from solver.cam import FOLLOWERS, CamGeometryError
 from ... import editing
 from ...axisreport import fmt
 from ...camfile import find_cam, study_cam
-from ...editing import EditError, parse_number
+from ...editing import parse_number
 from ...projectfile import Project
 from ..messages import ProjectEdited, Status
 from ..screens.confirm import ChoiceDialog
@@ -56,6 +56,14 @@ def meaning(follower: str, key: str) -> str:
 
 def _mm(value: float | None) -> str:
     return "—" if value is None else f"{fmt(value)} mm"
+
+
+def typed_form(value: float | None) -> str:
+    """The value as the input shows it: short, but never rounded ("60", "12.3456789")."""
+    if value is None:
+        return ""
+    short = f"{value:g}"
+    return short if float(short) == value else repr(value)
 
 
 def shown(follower: str, key: str, value: float | None) -> str:
@@ -106,7 +114,7 @@ def size_dialog(project: Project, cam_name: str, key: str) -> tuple[EditDialog, 
     screen = EditDialog(
         f"Size of cam {cam_name} ({spec.follower.replace('-', ' ')} follower)",
         f"{key} [mm] — {meaning(spec.follower, key)}{blank}:",
-        "" if value is None else f"{value:g}", attempt, explain,
+        typed_form(value), attempt, explain,
     )
     return screen, f"cam {cam_name}: {key}"
 
@@ -114,28 +122,23 @@ def size_dialog(project: Project, cam_name: str, key: str) -> tuple[EditDialog, 
 def start_size_edit(view, project: Project, cam_name: str) -> None:
     """Ask which size of the cam to change, then its length; the result goes up from `view`."""
 
-    def edited(result: Project | None, note: str) -> None:
+    spec = find_cam(project, cam_name)
+
+    def edited(result: Project | None, key: str, note: str) -> None:
         if result is None:
             return
         if result is project:
             view.post_message(Status(f"{note}: unchanged"))
             return
-        key = note.rsplit(": ", 1)[1]
-        follower = find_cam(project, cam_name).follower
-        old, new = find_cam(project, cam_name).size(key), find_cam(result, cam_name).size(key)
-        view.post_message(ProjectEdited(result, f"{note} {shown(follower, key, old)} → {shown(follower, key, new)}"))
+        old, new = spec.size(key), find_cam(result, cam_name).size(key)
+        view.post_message(ProjectEdited(result, f"{note} {shown(spec.follower, key, old)} → "
+                                                f"{shown(spec.follower, key, new)}"))
 
     def chosen(key: str | None) -> None:
-        if key is None:
-            return
-        try:
+        if key is not None:
             screen, note = size_dialog(project, cam_name, key)
-        except EditError as exc:
-            view.post_message(Status(exc.message, error=True))
-            return
-        view.app.push_screen(screen, lambda result: edited(result, note))
+            view.app.push_screen(screen, lambda result: edited(result, key, note))
 
-    spec = find_cam(project, cam_name)
     view.app.push_screen(ChoiceDialog(
         f"Sizes of cam {cam_name} ({spec.follower.replace('-', ' ')} follower)",
         "press the key of the size to change:",
