@@ -348,6 +348,8 @@ async def test_an_offset_typed_in_the_cam_view_reaches_the_geometry_and_the_file
         await settle(pilot)
         await pilot.press("4")
         await settle(pilot)
+        sizes = app.query_one("#cam-sizes", Static)
+        assert str(sizes.content) == "sizes: prime_radius 60 mm · roller_radius 12 mm · offset 6 mm (s: change)"
         await pilot.press("s")  # the list names every size of the follower with its value
         await pilot.pause()
         assert [(k, w) for k, w, _ in app.screen.answers] == [("a", "prime_radius"), ("b", "roller_radius"),
@@ -365,6 +367,7 @@ async def test_an_offset_typed_in_the_cam_view_reaches_the_geometry_and_the_file
         assert dict(app.project.parts["cam"][0].sizes)["offset"] == -4.0
         assert app.status_text == "cam stamp-cam: offset 6 mm → -4 mm" and app.history.can_undo
         assert view(app).entry.study.cam.follower.offset == pytest.approx(-0.004)
+        assert str(sizes.content) == "sizes: prime_radius 60 mm · roller_radius 12 mm · offset -4 mm (s: change)"
         view(app).action_go(160.0)
         await pilot.press("shift+right", "shift+right")
         await settle(pilot)

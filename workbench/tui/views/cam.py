@@ -33,7 +33,7 @@ from ..widgets.cam_export import start_export
 from ..widgets.cam_plots import AnglePlot, pressure_angle_plot, radius_plot
 from ..widgets.cam_verdicts import CamVerdicts, angle, show_text
 from . import register_view
-from .cam_sizes import start_size_edit
+from .cam_sizes import sizes_text, start_size_edit
 from .base import WorkbenchView
 
 CAM_ACTIONS = {"step", "go", "worst", "export", "cycle_cam", "sizes"}  # keys that need a cam
@@ -66,7 +66,7 @@ class CamView(WorkbenchView):
     #cam-drawing:focus { background: $boost; }
     #cam-side { width: 1fr; padding: 0 0 0 1; scrollbar-size-vertical: 1; }
     #cam-readout { height: auto; }
-    #cam-legend { height: auto; }
+    #cam-legend, #cam-sizes { height: auto; }
     #cam-plots { height: 9; }
     #cam-plots AnglePlot { width: 1fr; }
     #cam-empty { padding: 1 2; }
@@ -126,6 +126,7 @@ class CamView(WorkbenchView):
                 yield CamVerdicts(id="cam-verdicts")
                 yield Static(id="cam-readout")
                 yield Static(id="cam-legend")
+                yield Static(id="cam-sizes")
         with Horizontal(id="cam-plots"):
             yield AnglePlot(id="cam-pressure")
             yield AnglePlot(id="cam-radius")
@@ -212,6 +213,7 @@ class CamView(WorkbenchView):
         self.query_one(CamVerdicts).show(entry)
         ok = entry is not None and entry.study is not None
         self.query_one("#cam-legend", Static).update(legend(entry) if ok else Text(""))
+        self.query_one("#cam-sizes", Static).update(sizes_text(self.project, self.cam_name))
         pressure, radius = self.query_one("#cam-pressure", AnglePlot), self.query_one("#cam-radius", AnglePlot)
         pressure.show_spec(pressure_angle_plot(entry) if ok else None, self.angle)
         radius.show_spec(radius_plot(entry) if ok else None, self.angle)

@@ -13,6 +13,8 @@ from __future__ import annotations
 
 from dataclasses import fields
 
+from rich.text import Text
+
 from solver.cam import FOLLOWERS, CamGeometryError
 
 from ... import editing
@@ -79,6 +81,15 @@ def size_choices(project: Project, cam_name: str) -> list[tuple[str, str, str]]:
     spec = find_cam(project, cam_name)
     return [(CHOICE_KEYS[i], key, f"{key:<15}{shown(spec.follower, key, value):>15}  {SHORT.get(key, '')}")
             for i, (key, value, _) in enumerate(editing.cam_sizes(spec))]
+
+
+def sizes_text(project: Project | None, cam_name: str | None) -> Text:
+    """The follower's sizes in one dim line for the Cam view: "sizes: prime_radius 60 mm · … (s)"."""
+    spec = find_cam(project, cam_name) if project is not None and cam_name is not None else None
+    if spec is None:
+        return Text("")
+    given = [f"{key} {_mm(value)}" for key, value, _ in editing.cam_sizes(spec) if value is not None]
+    return Text(f"sizes: {' · '.join(given)} (s: change)", style="dim")
 
 
 def verdict_words(project: Project, cam_name: str) -> str:
