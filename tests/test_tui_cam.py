@@ -33,6 +33,7 @@ from workbench.tui.messages import ProjectEdited
 from workbench.tui.screens.confirm import ChoiceDialog
 from workbench.tui.screens.edit_value import EditDialog
 from workbench.tui.screens.path_prompt import PathDialog
+from workbench.tui.views.axis_rename import rename_dialog
 from workbench.tui.views.cam import CamView
 from workbench.tui.widgets.cam_empty import example_text
 from workbench.tui.widgets.cam_drawing import CORNER_MARK, TROUBLE_MARK, CamDrawing, Raster
@@ -485,6 +486,15 @@ async def test_renaming_the_cam_s_axis_in_the_axes_view_carries_the_cam_along(pr
     assert [(a, b) for a, b in zip(old, new) if a != b] == [('name = "stamp"', 'name = "punch"'),
                                                             ('axis = "stamp"', 'axis = "punch"')]
     assert load_project(press_file).parts["cam"][0].axis == "punch"
+
+
+def test_the_rename_prompt_says_what_follows_the_axis():
+    lidder = load_project(preset_path("tray-lidder"))  # no cams, no linkages
+    assert rename_dialog(lidder, "tray-pusher").prompt == ("name — unique among the axes; no cam or linkage "
+                                                           "driver follows it:")
+    press = load_project(preset_path("cam-press"))
+    assert rename_dialog(press, "stamp").prompt == ('name — unique among the axes; cam "stamp-cam" follows it, '
+                                                    'renamed with it:')
 
 
 async def test_a_cam_an_edit_cannot_lay_out_is_reported_not_raised(press_file):

@@ -419,7 +419,8 @@ async def test_renaming_the_driving_axis_keeps_the_linkage_running(carriage_file
         await pilot.press("n")  # the Axes view's rename: the value dialog
         await pilot.pause()
         assert isinstance(app.screen, EditDialog)
-        assert app.screen.prompt.endswith('renamed with it (linkage "drive" driver "stroke"):')
+        assert app.screen.prompt == ('name — unique among the axes; linkage "drive" driver "stroke" follows it, '
+                                     'renamed with it:')
         app.screen.query_one("#value", Input).value = "gripper"  # the other axis: refused, nothing changes
         await pilot.pause()
         assert app.screen.error == "name: another axis is called 'gripper'; axis names must be unique"

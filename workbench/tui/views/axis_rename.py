@@ -38,11 +38,10 @@ def rename_dialog(project: Project, old: str) -> EditDialog:
         return f"{old} → {new}" + (f"; {followers_words(edited, new)} follow{'s' if len(follow) == 1 else ''}"
                                    if follow else "")
 
-    return EditDialog(
-        f"Name of axis {old}",
-        f"name — unique among the axes; what follows it is renamed with it ({followers_words(project, old)}):",
-        old, attempt, explain,
-    )
+    users = editing.axis_users(project, old)
+    follow = (f"{followers_words(project, old)} follow{'s' if len(users) == 1 else ''} it, renamed with it"
+              if users else "no cam or linkage driver follows it")
+    return EditDialog(f"Name of axis {old}", f"name — unique among the axes; {follow}:", old, attempt, explain)
 
 
 def start_rename(view) -> None:
