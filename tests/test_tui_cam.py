@@ -582,9 +582,10 @@ async def test_no_cam_shows_a_valid_example():
         shown = str(app.query_one("#cam-empty-text", Static).content)
         assert shown.startswith("This project has no [[cam]] table.")
         assert not app.query_one("#cam-top").display
-        await pilot.press("e", "right")
+        await pilot.press("e", "right", "s")
         await settle(pilot)
         assert view(app).angle == 0.0  # cam keys are off without a cam
+        assert not isinstance(app.screen, ChoiceDialog) and view(app).check_action("sizes", ()) is False
     example = example_text("lid-lift")
     assert example in shown
     project = loads_project(preset_path("tray-lidder").read_text() + "\n" + example + "\n")
