@@ -352,7 +352,8 @@ async def test_a_linkage_without_loads_shows_its_hint_alone():
         notes = str(app.query_one("#loads-notes", Static).content)
         assert notes.startswith("This linkage has no [linkage.loads] table")
         assert LINKAGE_EXAMPLE.format(body="crank") in notes
-        assert app.query_one("#loads-notes").content_region.y == app.query_one("#loads-bar").region.bottom + 1  # one blank row
+        bar_bottom = app.query_one("#loads-bar").region.bottom
+        assert app.query_one("#loads-notes").content_region.y == bar_bottom + 1  # one blank row
         assert not view(app).check_action("step", ()) and not view(app).check_action("go", ())
         await pilot.press("right")  # no cursor: nothing moves
         await settle(pilot)
