@@ -24,7 +24,7 @@ from workbench.tui.screens.confirm import ChoiceDialog
 from workbench.tui.screens.help import HelpScreen
 from workbench.tui.screens.law_picker import LawPicker
 from workbench.tui.views.axes import AxesView
-from workbench.tui.widgets.cell_editor import CellEditor, CellField, EditNote
+from workbench.tui.widgets.cell_editor import CellEditor, CellField, EditNote, LineText
 from workbench.tui.widgets.peaks_panel import PeaksPanel
 from workbench.tui.widgets.segment_table import SegmentTable
 
@@ -226,6 +226,27 @@ async def test_enter_on_an_untouched_cell_changes_nothing(project_file):
         await type_over(pilot, "166.8")  # 166.8 ms of a 500 ms cycle is 120.096°
         assert "120° → 120.096°" in note_text(app)
         await pilot.press("escape")
+
+
+@pytest.mark.parametrize("keys, text, cursor", [
+    (["7"], "7", 1),  # fresh, the value is selected: the first character replaces it
+    (["backspace"], "", 0),  # ... and a delete key clears it
+    (["end", "backspace"], "9", 1),
+    (["left", "5"], "590", 1),  # left leaves the selection at the start
+    (["home", "right", "5"], "950", 2),
+    (["end", "left", "delete"], "9", 1),
+    (["end", "ctrl+u"], "", 0),  # clears back to the start
+    (["right", "right", "right"], "90", 2),  # never past the end
+])
+def test_typing_over_a_cell(keys, text, cursor):
+    line = LineText("90")
+    for key in keys:
+        if len(key) == 1:
+            line.insert(key)
+        else:
+            assert line.key(key)
+    assert (line.text, line.cursor, line.selected) == (text, cursor, False)
+    assert not line.key("f5")  # not an editing key
 
 
 async def test_a_dwell_has_no_end_position_to_type(project_file):

@@ -6,9 +6,10 @@ reason the model refuses the typed value or what the change would do.  Enter
 applies only what the model accepts; Escape closes and nothing changes.
 
 The owner keeps the keyboard focus on its table and hands the editor its keys
-(`CellEditor.key`): nothing else on screen moves or is relabelled when an edit
-opens or closes, so the edit and its numbers can reach the screen in one
-update.  The editor knows nothing about projects: a `CellEdit` gives it
+(`CellEditor.type`, `CellEditor.key`).  The focus never moves, so closing the
+editor changes nothing on screen but the editor itself: no focus change
+rebuilds the footer or lays out the screen between Enter and the edit's
+numbers.  The editor knows nothing about projects: a `CellEdit` gives it
 `attempt(text, choice)`, which returns the edited model or raises `EditError`.
 """
 
@@ -31,7 +32,7 @@ NOTE_MAX_WIDTH = 86  # cells: a note wider than this reads worse, not better
 
 @dataclass(frozen=True)
 class CellEdit:
-    """What one in-place edit needs: where it is, what it means and how the model takes it."""
+    """What one in-place edit needs: what is edited, its value and how the model takes it."""
 
     title: str
     """What is edited, e.g. "span of segment 1 (cycloidal), axis lid-lift"."""
