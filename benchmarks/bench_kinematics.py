@@ -159,10 +159,20 @@ no take_along_axis or tile in the factor            13.6   21.4    23.7   37.3  
 one-instant Newton tests on plain floats            14.9   22.7    24.0   34.0    63.6
 assembly and first state remembered                 12.9   21.2    21.4   30.6    60.1
 Hermite guesses gathered by runs                    13.3   19.9    22.9   32.6    58.5
-small trims (this version)                          12.7   20.0    21.1   31.0    58.3
+small trims                                         12.7   20.0    21.1   31.0    58.3
+-- a second pass; the solver's break handling had landed meanwhile (+0.2 M) --
+start of the pass, re-measured (*)                  13.4   19.8    20.6   32.9    58.5
+one instant on floats: kinds per instance, LAPACK   10.1   16.1    17.4   26.8    51.3
+fewer array calls per batched evaluation and solve   9.4   15.0    17.4   25.6    50.4
+pivot rows by whole-row comparison, not argmax       8.7   14.3    15.1   25.0    45.4
+dense remainder scaled in place (this version)       9.1   14.9    14.7   25.3    45.0
 
+(*) 360 solves per version in one alternation; the version run first in each round
+measured ~3 ms slow there, so the start row comes from a second alternation in reverse
+order (120 solves; this version 9.4 / 13.8 and 15.4 / 23.6 in it).
 Page faults per solve: four-bar ~990 -> 0, six-bar ~1,750 -> 0.  Six-bar instructions
-159.1 -> 105.7 M.  Numpy closed form of the four-bar: best 0.92-1.0 ms meanwhile.
+159.1 -> 105.7 M in the first pass, 106.2 -> 81.5 M in the second.  Numpy closed form of
+the four-bar: best 0.92-1.2 ms meanwhile.
 Tried and left out (measured): the Newton step and the velocity as one two-column solve
 (-7% instructions at 185 instants, +1..4% at 3,600 and at one instant); solving every
 2-degree node of a march step in one batch (each extra instant costs ~36 k instructions
@@ -172,7 +182,13 @@ one would change where the march searches for dead points); march steps over 45 
 branch check rejects them: defect 0.015-0.034 > 0.01); blocks of instants sized for the
 cache (a Newton pass costs ~1.5 ms of fixed overhead); LAPACK on stacks of 3,600
 matrices (inverse 12.6 ms, solve 5 ms); scipy's getrf/getri for one instant (no faster
-than numpy's inv and slogdet)."""
+than numpy's inv and slogdet while the evaluation around it made ~100 numpy calls; with
+the kinds on floats they are: ~2 us against ~14 us for numpy's inv).  In the second pass:
+gathering only the pose components a kind reads (the gathers are memcpy-fast, ~35 us for
+all of a four-bar at 3,600 instants; one call per component costs more); cos and sin as
+one complex exponential (no faster: ~0.5 ms for 10,800 angles either way, numpy's float64
+sin and cos run scalar libm here); the elimination plan on floats for one instant
+(estimated ~5 of ~25 us per march iteration: not done)."""
 
 
 def naive_root_loop(mechanism, theta, q0):
