@@ -110,6 +110,7 @@ class InstantKinds:
 
     # -- evaluation on lists -------------------------------------------------
     def poses(self, q: list) -> list:
+        """A FloatPose per moving body from q (x, y, φ per body), then the ground's."""
         out = []
         for b in range(0, 3 * self.B, 3):
             phi = q[b + 2]
@@ -118,6 +119,7 @@ class InstantKinds:
         return out
 
     def rates(self, dq: list) -> list:
+        """FloatRates per moving body from a derivative of q, then the ground's (zero)."""
         out = [FloatRates(dq[b], dq[b + 1], dq[b + 2]) for b in range(0, 3 * self.B, 3)]
         out.append(GROUND_RATES)
         return out
