@@ -249,6 +249,7 @@ async def test_a_cell_editor_closing_and_its_edit_are_painted_together(monkeypat
     import threading
 
     import workbench.app as app_module
+    import workbench.tui.views.axes as axes_module
 
     app = Workbench(load_project(preset_path("tray-lidder")))
     held_when_sent = []
@@ -262,9 +263,11 @@ async def test_a_cell_editor_closing_and_its_edit_are_painted_together(monkeypat
         await settle(pilot)
         view = app.query_one("#axes")
         screen = app.screen
-        gate = threading.Event()
+        gate = threading.Event()  # no numbers at all until the gate opens: neither ahead nor after
         compute = app_module.compute_results
-        monkeypatch.setattr(app_module, "compute_results", lambda project: gate.wait(10) and compute(project))
+        slow = lambda project: gate.wait(10) and compute(project)  # noqa: E731
+        monkeypatch.setattr(app_module, "compute_results", slow)
+        monkeypatch.setattr(axes_module, "compute_results", slow)
         try:
             app.query_one("#segments").move_cursor(row=0, column=2)  # segment 1's span
             await pilot.press("enter", "1", "0", "0")
@@ -279,4 +282,35 @@ async def test_a_cell_editor_closing_and_its_edit_are_painted_together(monkeypat
         assert not view.holding and view.results_for is app.project
         assert app.project.axis(LID).segments[0].span == 100.0
         v = cycloidal_peak_velocity(40.0, 100.0, 120.0)  # 576 mm/s
+        assert f"peak {v:.4g}" in plot(app, "velocity").title
+
+
+async def test_the_numbers_of_a_typed_value_are_ready_at_enter(monkeypatch):
+    import threading
+
+    import workbench.app as app_module
+
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        view = app.query_one("#axes")
+        gate = threading.Event()  # the app's own numbers for the edit wait at the gate
+        compute = app_module.compute_results
+        monkeypatch.setattr(app_module, "compute_results", lambda project: gate.wait(10) and compute(project))
+        try:
+            app.query_one("#segments").move_cursor(row=0, column=2)  # segment 1's span
+            await pilot.press("enter", "1", "0", "0")
+            await app.workers.wait_for_complete()  # the view's numbers of "100", computed while typed
+            await pilot.press("enter")
+            await pilot.pause()
+            assert app.project.axis(LID).segments[0].span == 100.0
+            assert view.results_for is app.project and not view.holding  # painted without the app's numbers
+            assert app.results_for is not app.project
+            v = cycloidal_peak_velocity(40.0, 100.0, 120.0)  # 576 mm/s
+            assert f"peak {v:.4g}" in plot(app, "velocity").title
+            assert app.query_one("#peaks").rows["velocity"]["value"] == f"{v:.0f} mm/s"
+        finally:
+            gate.set()
+        await settle(pilot)
+        assert app.results_for is app.project and view.results_for is app.project
         assert f"peak {v:.4g}" in plot(app, "velocity").title

@@ -27,16 +27,17 @@ from __future__ import annotations
 from typing import Callable
 
 from rich.text import Text
-from textual import events
+from textual import events, work
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.geometry import Region
 from textual.widgets import DataTable, Static
+from textual.worker import get_current_worker
 
 from ... import editing
 from ...editing import EditError
 from ...projectfile import Project
-from ..compute import AxisResult
+from ..compute import AxisResult, compute_results
 from ..format import axis_verdict, number
 from ..messages import ProjectEdited, Status
 from ..widgets.axis_plots import PlotPanel
@@ -115,6 +116,8 @@ class AxesView(WorkbenchView):
         """The note of the edit open in place (for undo and the status line)."""
         self._footer_stale = False
         """True when the footer still shows the editor's keys after it closed with an edit."""
+        self._ahead: tuple[Project, dict[str, AxisResult]] | None = None
+        """The numbers of the state the open editor would make, computed while it is typed."""
 
     def compose(self) -> ComposeResult:
         yield AxisBar(id="axis-bar")
@@ -139,8 +142,13 @@ class AxesView(WorkbenchView):
         if self.axis_name not in names:
             self.axis_name = names[0] if names else None
         self._refresh_axis()
+        ahead, self._ahead = self._ahead, None
+        if ahead is not None and ahead[0] is project:  # typed in place: its numbers are here already
+            self.show_results(*ahead)
 
     def show_results(self, project: Project, results: dict[str, AxisResult]) -> None:
+        if project is self.results_for:
+            return  # on view already (computed ahead while the value was typed)
         self.results, self.results_for = results, project
         self._refresh_numbers()
         if project is self.project:
@@ -309,6 +317,7 @@ class AxesView(WorkbenchView):
         return Region(origin.x + x, origin.y + y, columns[column].get_render_width(table), 1)
 
     def _close_editor(self) -> None:
+        self._ahead = None
         if self.editing:
             self.editor.close()
             self.refresh_bindings()
@@ -349,11 +358,31 @@ class AxesView(WorkbenchView):
             return
         event.stop()
         event.prevent_default()
+        self._compute_ahead()
 
     def on_paste(self, event: events.Paste) -> None:
         if self.editing:
             self.editor.type(event.text)
             event.stop()
+            self._compute_ahead()
+
+    def _compute_ahead(self) -> None:
+        """Start the numbers of what is typed now, so that Enter finds them done."""
+        project = self.editor.result if self.editing else None
+        if project is None or self.editor.unchanged or (self._ahead and self._ahead[0] is project):
+            return
+        self._ahead = None
+        self._numbers_ahead(project)
+
+    @work(thread=True, exclusive=True, group="cell-ahead", exit_on_error=False)
+    def _numbers_ahead(self, project: Project) -> None:
+        results = compute_results(project)
+        if not get_current_worker().is_cancelled:
+            self.app.call_from_thread(self._ahead_done, project, results)
+
+    def _ahead_done(self, project: Project, results: dict[str, AxisResult]) -> None:
+        if self.editing and self.editor.result is project:
+            self._ahead = (project, results)
 
     def on_data_table_cell_highlighted(self, event: DataTable.CellHighlighted) -> None:
         if self.editing:
