@@ -29,12 +29,11 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from motionlaws.peaks import LimitCheck, Peak
-from solver.kinematics import INSTANTS, SOLVED, JointCoordinate, System
-from solver.loads import DriveLoad, JointReaction, LinkageLoads, LoadsError, ServoSizing, linkage_loads, servo_sizing
-from solver.kinematics.outputs import CoordinateProbe
-from solver.kinematics.peaks import cycle_breaks
-from solver.loads.linkage_peaks import refined_peak
-from solver.loads.linkage_power import velocity_coefficients
+from solver.kinematics import INSTANTS, SOLVED, CoordinateProbe, JointCoordinate, System, cycle_breaks
+from solver.loads import (
+    DriveLoad, JointReaction, LinkageLoads, LoadsError, ServoSizing, linkage_loads, refined_peak, servo_sizing,
+    velocity_coefficients,
+)
 
 from . import linkageloads
 from .linkagefile import DriverSpec, LinkageSpec, Target, describe, target_unit

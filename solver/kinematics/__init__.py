@@ -14,7 +14,7 @@ from .joins import OutputJoin, output_joins
 from .model import GROUND, Body, Driver, Mechanism
 from .motion import DEG, MM, ConstantSpeed, ProgramMotion
 from .outputs import CoordinateProbe, OutputCurve
-from .peaks import OutputPeaks, check_limits, max_speed, output_peaks
+from .peaks import OutputPeaks, check_limits, cycle_breaks, max_speed, output_peaks
 from .prismatic import Prismatic
 from .result import DEAD_POINT, NOT_ASSEMBLED, NOT_DRIVEN, SOLVED, CycleResult, DeadPoint
 from .revolute import Revolute
@@ -27,7 +27,7 @@ __all__ = [
     "INSTANTS", "mobility", "solve_cycle", "DofReport", "Motion",
     "ModelError", "Fixed", "OutputJoin", "output_joins", "GROUND", "Body", "Driver", "Mechanism",
     "DEG", "MM", "ConstantSpeed", "ProgramMotion", "CoordinateProbe", "OutputCurve",
-    "OutputPeaks", "check_limits", "max_speed", "output_peaks",
+    "OutputPeaks", "check_limits", "cycle_breaks", "max_speed", "output_peaks",
     "Prismatic", "DEAD_POINT", "NOT_ASSEMBLED", "NOT_DRIVEN", "SOLVED", "CycleResult", "DeadPoint",
     "Revolute", "System", "TransmissionAngle",
 ]

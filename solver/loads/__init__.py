@@ -13,7 +13,8 @@ from .follower import (
 )
 from .linkage import DriveLoad, JointReaction, LinkageLoads, linkage_loads
 from .linkage_model import BodyMass, BodyTorque, LinkageLoading, LoadsError, PointForce
-from .linkage_power import drive_efforts_by_power, kinetic_energy
+from .linkage_peaks import refined_peak
+from .linkage_power import drive_efforts_by_power, kinetic_energy, velocity_coefficients
 from .servo import Gearing, ServoFigures, ServoLimits, ServoSizing, motor_curves, servo_sizing
 
 
@@ -32,6 +33,6 @@ __all__ = [
     "preload_for_margin", "scaled_motion",
     "DriveLoad", "JointReaction", "LinkageLoads", "linkage_loads",
     "BodyMass", "BodyTorque", "LinkageLoading", "LoadsError", "PointForce",
-    "drive_efforts_by_power", "kinetic_energy",
+    "drive_efforts_by_power", "kinetic_energy", "refined_peak", "velocity_coefficients",
     "Gearing", "ServoFigures", "ServoLimits", "ServoSizing", "motor_curves", "servo_sizing",
 ]
