@@ -249,7 +249,7 @@ async def test_a_cell_editor_closing_and_its_edit_are_painted_together(monkeypat
     import threading
 
     import workbench.app as app_module
-    import workbench.tui.views.axes as axes_module
+    import workbench.tui.widgets.cell_editing as cells_module
 
     app = Workbench(load_project(preset_path("tray-lidder")))
     held_when_sent = []
@@ -267,7 +267,7 @@ async def test_a_cell_editor_closing_and_its_edit_are_painted_together(monkeypat
         compute = app_module.compute_results
         slow = lambda project: gate.wait(10) and compute(project)  # noqa: E731
         monkeypatch.setattr(app_module, "compute_results", slow)
-        monkeypatch.setattr(axes_module, "compute_results", slow)
+        monkeypatch.setattr(cells_module, "compute_results", slow)
         try:
             app.query_one("#segments").move_cursor(row=0, column=2)  # segment 1's span
             await pilot.press("enter", "1", "0", "0")

@@ -1,0 +1,180 @@
+"""The view side of editing a table's cells in place (`CellsInPlace`, a mixin for a view).
+
+The view keeps the keyboard focus on its `SegmentTable` and hands the open
+`CellEditor` the keys that edit its line; other keys go on to the bindings
+as usual.  Enter applies (`action_apply_edit`): the editor closes, screen
+updates are held (the host's `_hold`) and the edit goes up as
+`ProjectEdited`, so the editor's closing and the edit are painted together.
+The numbers of what is typed are computed while it is typed (a thread
+worker), so Enter finds them done: the host's `show_project` hands them to
+`show_results` with `take_ahead`.
+
+The host provides `project`, `_hold()`, `show_results(project, results)`, a
+`SegmentTable`, a `CellField` and an `EditNote` among its children, and
+bindings for `apply_edit` and `cancel_edit` (enter, escape); it calls
+`_init_cells()` in `__init__` and `_mount_cells()` on mount.
+"""
+
+from __future__ import annotations
+
+from typing import Callable
+
+from textual import events, work
+from textual.geometry import Region
+from textual.widgets import DataTable
+from textual.worker import get_current_worker
+
+from ...editing import EditError
+from ...projectfile import Project
+from ..compute import AxisResult, compute_results
+from ..messages import ProjectEdited, Status
+from .cell_editor import CellEdit, CellEditor, CellField, EditNote
+from .segment_table import SegmentTable
+
+EDITOR_ACTIONS = ("apply_edit", "cancel_edit")  # the view's actions while a cell is edited
+KEPT_FOCUS = ("tab", "shift+tab")  # keys that would move the focus away: an open editor swallows them
+
+
+class CellsInPlace:
+    """Typed cells of the host's segment table, edited in place."""
+
+    def _init_cells(self) -> None:
+        self.editor: CellEditor | None = None
+        """The in-place editor of the table's typed cells."""
+        self._edit_note = ""
+        """The note of the edit open in place (for undo and the status line)."""
+        self._footer_stale = False
+        """True when the footer still shows the editor's keys after it closed with an edit."""
+        self._ahead: tuple[Project, dict[str, AxisResult]] | None = None
+        """The numbers of the state the open editor would make, computed while it is typed."""
+
+    def _mount_cells(self) -> None:
+        self.editor = CellEditor(self.query_one(CellField), self.query_one(EditNote))
+
+    def take_ahead(self, project: Project) -> dict[str, AxisResult] | None:
+        """The numbers of `project` if they were computed while it was typed (once)."""
+        ahead, self._ahead = self._ahead, None
+        return ahead[1] if ahead is not None and ahead[0] is project else None
+
+    def relabel_footer(self) -> None:
+        """After an edit made in place is on screen: the footer shows the view's keys again."""
+        if self._footer_stale:
+            self._footer_stale = False
+            self.call_after_refresh(self.refresh_bindings)
+
+    @property
+    def editing(self) -> bool:
+        """True while a cell of the table is being typed over."""
+        return self.editor is not None and self.editor.is_open
+
+    def _edit_in_place(self, build: Callable[[], tuple[CellEdit, str]]) -> None:
+        if self.project is None or self.axis_name is None:
+            return
+        try:
+            edit, note = build()
+        except EditError as exc:
+            self.post_message(Status(exc.message, error=True))
+            self.app.bell()
+            return
+        table = self.query_one(SegmentTable)
+        table.focus()  # the keys come through the table, so they must go to it
+        self._edit_note = note
+        self.editor.open(edit, *self._editor_place(table))
+        self.refresh_bindings()
+
+    def _editor_place(self, table: SegmentTable) -> tuple[Region, int]:
+        """Where the editor goes: the cell under the cursor, and the line under the table."""
+        return self._cell_region(table), table.region.bottom - self.content_region.y
+
+    def _cell_region(self, table: SegmentTable) -> Region:
+        """The cell under the table's cursor, in this view's coordinates."""
+        row, column = table.cursor_coordinate
+        columns = table.ordered_columns
+        x = sum(c.get_render_width(table) for c in columns[:column])
+        y = sum(r.height for r in table.ordered_rows[:row]) + (table.header_height if table.show_header else 0)
+        origin = table.content_region.offset - self.content_region.offset - table.scroll_offset
+        return Region(origin.x + x, origin.y + y, columns[column].get_render_width(table), 1)
+
+    def _close_editor(self) -> None:
+        self._ahead = None
+        if self.editing:
+            self.editor.close()
+            self.refresh_bindings()
+
+    def action_apply_edit(self) -> None:
+        """Enter in an open cell: the edit goes up with the editor's closing, or the reason stays."""
+        if not self.editing:
+            return
+        project = self.editor.result
+        if project is None:
+            self.app.bell()  # refused: the reason is on view under the cell
+            return
+        if self.editor.unchanged:  # nothing to do, nothing to undo
+            self._close_editor()
+            return
+        self.editor.close()
+        self._footer_stale = True
+        self._hold()  # the editor closing and the edit reach the screen together
+        self.post_message(ProjectEdited(project, self._edit_note))
+
+    def action_cancel_edit(self) -> None:
+        self._close_editor()
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        """While a cell is edited only its keys act here; otherwise only they do not."""
+        return (action in EDITOR_ACTIONS) == self.editing
+
+    def on_key(self, event: events.Key) -> None:
+        """An open editor takes the keys that edit its line; the rest go on to the bindings as
+        usual (save, undo, help ...; one that moves the cursor or changes the project closes it)."""
+        if not self.editing:
+            return
+        if event.key == "escape":
+            self.action_cancel_edit()
+        elif event.is_printable and event.character:
+            self.editor.type(event.character)
+        elif not self.editor.key(event.key) and event.key not in KEPT_FOCUS:
+            return
+        event.stop()
+        event.prevent_default()
+        self._compute_ahead()
+
+    def on_paste(self, event: events.Paste) -> None:
+        if self.editing:
+            self.editor.type(event.text)
+            event.stop()
+            self._compute_ahead()
+
+    def _compute_ahead(self) -> None:
+        """Start the numbers of what is typed now, so that Enter finds them done."""
+        project = self.editor.result if self.editing else None
+        if project is None or self.editor.unchanged or (self._ahead and self._ahead[0] is project):
+            return
+        self._ahead = None
+        self._numbers_ahead(project)
+
+    @work(thread=True, exclusive=True, group="cell-ahead", exit_on_error=False)
+    def _numbers_ahead(self, project: Project) -> None:
+        results = compute_results(project)
+        if not get_current_worker().is_cancelled:
+            self.app.call_from_thread(self._ahead_done, project, results)
+
+    def _ahead_done(self, project: Project, results: dict[str, AxisResult]) -> None:
+        if self.editing and self.editor.result is project:
+            self._ahead = (project, results)
+
+    def on_data_table_cell_highlighted(self, event: DataTable.CellHighlighted) -> None:
+        if self.editing:
+            self._close_editor()  # the cursor left the cell (a click, a page key)
+
+    def on_descendant_blur(self, event: events.DescendantBlur) -> None:
+        if self.editing and isinstance(event.widget, SegmentTable):
+            self._close_editor()
+
+    def on_resize(self, event: events.Resize) -> None:
+        if self.editing:  # the cell moves with the table: follow it once the table is laid out
+            self.call_after_refresh(self._follow_cell)
+
+    def _follow_cell(self) -> None:
+        if self.editing:
+            self.editor.place(*self._editor_place(self.query_one(SegmentTable)))
