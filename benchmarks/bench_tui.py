@@ -4,7 +4,8 @@ One edit (segment 1's span of the lid lift, alternating 90° ↔ 100°) is sent
 to the app as a view would send it; then the same edit is made as a user
 makes it: Enter on the span cell, the value typed over the cell, and the
 clock starts at the Enter that applies it (the cell editor closes, the edit
-follows).  The clock stops at the end of the
+follows; the view computed the typed value's numbers while it was typed,
+and the pause before Enter lets that finish, as a person's does).  The clock stops at the end of the
 screen update (compositor pass) in which the peaks panel and every plot on
 view were painted with the new numbers — not when the numbers arrive, nor
 when a plot has only prepared its drawing.  Each axis is sampled at 3,600
