@@ -55,6 +55,23 @@ def compute_axis(project: Project, name: str, points: int = POINTS_PER_CYCLE) ->
     return AxisResult(name, program.axis.unit, report, AxisCurves(theta, s, v, a, j), bounds)
 
 
+RECENT = 4  # states whose numbers are kept: enough for one typed ahead of its edit, and undo
+
+
+_recent: list[tuple[Project, int, dict[str, AxisResult]]] = []
+
+
 def compute_results(project: Project, points: int = POINTS_PER_CYCLE) -> dict[str, AxisResult]:
-    """Every axis of the project, by name, in file order."""
-    return {axis.name: compute_axis(project, axis.name, points) for axis in project.axes}
+    """Every axis of the project, by name, in file order.
+
+    The numbers of the last `RECENT` states are kept (a state is an immutable
+    snapshot: the same object has the same numbers), so a state whose numbers
+    a view computed while its value was typed is not computed again when it
+    becomes the edit."""
+    for known, n, results in list(_recent):
+        if known is project and n == points:
+            return results
+    results = {axis.name: compute_axis(project, axis.name, points) for axis in project.axes}
+    _recent.append((project, points, results))
+    del _recent[:-RECENT]
+    return results
