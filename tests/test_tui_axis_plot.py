@@ -313,4 +313,5 @@ async def test_the_numbers_of_a_typed_value_are_ready_at_enter(monkeypatch):
             gate.set()
         await settle(pilot)
         assert app.results_for is app.project and view.results_for is app.project
+        assert app.results is view.results  # the same numbers, not computed a second time
         assert f"peak {v:.4g}" in plot(app, "velocity").title
