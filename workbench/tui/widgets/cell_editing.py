@@ -9,7 +9,7 @@ The numbers of what is typed are computed while it is typed (a thread
 worker), so Enter finds them done: the host's `show_project` hands them to
 `show_results` with `take_ahead`.
 
-The host provides `project`, `_hold()`, `show_results(project, results)`, a
+The host provides `project`, `axis_name`, `_hold()`, `show_results(project, results)`, a
 `SegmentTable`, a `CellField` and an `EditNote` among its children, and
 bindings for `apply_edit` and `cancel_edit` (enter, escape); it calls
 `_init_cells()` in `__init__` and `_mount_cells()` on mount.
