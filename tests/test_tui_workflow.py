@@ -249,6 +249,31 @@ def test_typing_over_a_cell(keys, text, cursor):
     assert not line.key("f5")  # not an editing key
 
 
+async def test_keys_typed_faster_than_the_screen_are_taken_in_turn(project_file):
+    from textual import events
+
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        app.query_one(SegmentTable).move_cursor(row=0, column=2)  # segment 1, span
+        await pilot.pause()
+        # all at once, as a terminal delivers a quick burst: open, type, apply, then 2 (Timing view)
+        for key, character in [("enter", "\r"), ("1", "1"), ("2", "2"), ("0", "0"), ("enter", "\r"),
+                               ("escape", None), ("2", "2")]:
+            app.post_message(events.Key(key, character))
+        await settle(pilot)
+        assert [s.span for s in app.project.axis(LID).segments] == [120.0, 120.0, 120.0]
+        assert app.query_one("#views").current == "timing"  # the 2 after Enter was a key again
+        await pilot.press("1")
+        await settle(pilot)
+        for key, character in [("enter", "\r"), ("9", "9"), ("escape", None), ("enter", "\r")]:
+            app.post_message(events.Key(key, character))  # escape, then Enter opens it afresh
+        await settle(pilot)
+        view = app.query_one(AxesView)
+        assert view.editing and view.editor.text == "120"
+        assert [s.span for s in app.project.axis(LID).segments] == [120.0, 120.0, 120.0]
+
+
 async def test_a_dwell_has_no_end_position_to_type(project_file):
     app = Workbench(load_project(project_file))
     async with app.run_test(size=SIZE) as pilot:

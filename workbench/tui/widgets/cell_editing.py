@@ -2,16 +2,18 @@
 
 The view keeps the keyboard focus on its `SegmentTable` and hands the open
 `CellEditor` the keys that edit its line; other keys go on to the bindings
-as usual.  Enter applies (`action_apply_edit`): the editor closes, screen
-updates are held (the host's `_hold`) and the edit goes up as
-`ProjectEdited`, so the editor's closing and the edit are painted together.
+as usual.  Enter applies (`action_apply_edit`, in turn with the typed keys):
+the editor closes, screen updates are held (the host's `_hold`) and the edit
+goes up as `ProjectEdited`, so the editor's closing and the edit are painted
+together.
 The numbers of what is typed are computed while it is typed (a thread
 worker), so Enter finds them done: the host's `show_project` hands them to
 `show_results` with `take_ahead`.
 
-The host provides `project`, `axis_name`, `_hold()`, `show_results(project, results)`, a
-`SegmentTable`, a `CellField` and an `EditNote` among its children, and
-bindings for `apply_edit` and `cancel_edit` (enter, escape); it calls
+The host provides `project`, `axis_name`, `_hold()`, `show_results(project,
+results)`, `action_edit_cell()`, a `SegmentTable`, a `CellField` and an
+`EditNote` among its children, and bindings for `apply_edit` (enter,
+priority) and `cancel_edit` (escape); it calls
 `_init_cells()` in `__init__` and `_mount_cells()` on mount.
 """
 
@@ -21,6 +23,7 @@ from typing import Callable
 
 from textual import events, work
 from textual.geometry import Region
+from textual.message import Message
 from textual.widgets import DataTable
 from textual.worker import get_current_worker
 
@@ -33,6 +36,10 @@ from .segment_table import SegmentTable
 
 EDITOR_ACTIONS = ("apply_edit", "cancel_edit")  # the view's actions while a cell is edited
 KEPT_FOCUS = ("tab", "shift+tab")  # keys that would move the focus away: an open editor swallows them
+
+
+class EnterTyped(Message):
+    """Enter in an open cell, sent through the table to come after the keys typed before it."""
 
 
 class CellsInPlace:
@@ -102,8 +109,18 @@ class CellsInPlace:
             self.refresh_bindings()
 
     def action_apply_edit(self) -> None:
-        """Enter in an open cell: the edit goes up with the editor's closing, or the reason stays."""
+        """Enter in an open cell.  The app runs a priority binding as the key arrives, ahead of
+        keys typed before it that are still on their way to the table, so the Enter goes the same
+        way (`EnterTyped`, through the table) and a quick "enter 1 2 0 enter" applies 120."""
+        if self.editing:
+            self.query_one(SegmentTable).post_message(EnterTyped())
+
+    def on_enter_typed(self, message: EnterTyped) -> None:
+        """The Enter, after the keys typed before it: the edit goes up with the editor's closing,
+        or the reason stays; a key before it closed the editor (escape): edit the cell again."""
+        message.stop()
         if not self.editing:
+            self.action_edit_cell()
             return
         project = self.editor.result
         if project is None:
@@ -125,8 +142,9 @@ class CellsInPlace:
         return (action in EDITOR_ACTIONS) == self.editing
 
     def on_key(self, event: events.Key) -> None:
-        """An open editor takes the keys that edit its line; the rest go on to the bindings as
-        usual (save, undo, help ...; one that moves the cursor or changes the project closes it)."""
+        """An open editor takes the keys that edit its line, and Escape; the rest go on to the
+        bindings as usual (save, undo, help ...; one that moves the cursor or changes the
+        project closes it)."""
         if not self.editing:
             return
         if event.key == "escape":
