@@ -359,6 +359,30 @@ async def test_undo_redo_every_edit(project_file):
         assert "redid: split segment 1" in app.status_text
 
 
+async def test_undoing_a_rename_keeps_the_axis_on_view(project_file):
+    """The second axis renamed and the rename undone and redone: the view stays on it each time."""
+    from workbench import editing
+    from workbench.tui.messages import ProjectEdited
+
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        view = app.query_one(AxesView)
+        second = app.project.axes[1].name
+        await pilot.press(".")
+        await settle(pilot)
+        assert view.axis_name == second
+        app.post_message(ProjectEdited(editing.rename_axis(app.project, second, "pusher-2"), "rename"))
+        await settle(pilot)
+        assert view.axis_name == "pusher-2"
+        await pilot.press("ctrl+z")
+        await settle(pilot)
+        assert view.axis_name == second
+        await pilot.press("ctrl+y")
+        await settle(pilot)
+        assert view.axis_name == "pusher-2"
+
+
 async def test_reorder_add_speed_and_limits(project_file):
     app = Workbench(load_project(project_file))
     async with app.run_test(size=SIZE) as pilot:

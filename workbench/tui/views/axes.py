@@ -127,10 +127,12 @@ class AxesView(CellsInPlace, WorkbenchView):
             self._close_editor()  # it was built on the state before (an undo, say)
         if project is not self.results_for:
             self._hold()
+        previous = [a.name for a in self.project.axes] if self.project is not None else []
         self.project = project
         names = [a.name for a in project.axes]
-        if self.axis_name not in names:
-            self.axis_name = names[0] if names else None
+        if self.axis_name not in names:  # renamed, a rename undone, or deleted: stay at its place in the list
+            at = previous.index(self.axis_name) if self.axis_name in previous else 0
+            self.axis_name = names[min(at, len(names) - 1)] if names else None
         self._refresh_axis()
         ahead = self.take_ahead(project)
         if ahead is not None:  # typed in place: its numbers are here already
