@@ -594,16 +594,6 @@ async def test_no_cam_shows_a_valid_example():
 
 # --- snapshots (state asserted first; see tests/test_tui_snapshots.py for what keeps them stable) ---
 
-RENDERING_VARIABLES = ("NO_COLOR", "FORCE_COLOR", "TEXTUAL_COLOR_SYSTEM", "TEXTUAL_THEME",
-                       "TEXTUAL_ANIMATIONS", "COLORTERM")
-
-
-@pytest.fixture
-def plain_environment(monkeypatch):
-    for name in RENDERING_VARIABLES:
-        monkeypatch.delenv(name, raising=False)
-
-
 def test_cam_view_80x24(snap_compare, plain_environment):
     app = Workbench(load_project(preset_path("cam-press")))
 

@@ -18,14 +18,9 @@ from workbench.projectfile import load_project
 from workbench.tui.views.axes import AxesView
 from workbench.tui.widgets.segment_table import SegmentTable
 
-RENDERING_VARIABLES = ("NO_COLOR", "FORCE_COLOR", "TEXTUAL_COLOR_SYSTEM", "TEXTUAL_THEME",
-                       "TEXTUAL_ANIMATIONS", "COLORTERM")
-
-
 @pytest.fixture(autouse=True)
-def plain_environment(monkeypatch):
-    for name in RENDERING_VARIABLES:
-        monkeypatch.delenv(name, raising=False)
+def _plain(plain_environment):
+    """Every test here is a snapshot: none of the rendering variables set (conftest.py)."""
 
 
 def workbench(preset: str = "tray-lidder") -> Workbench:

@@ -1,0 +1,17 @@
+"""Fixtures shared by the test files."""
+
+from __future__ import annotations
+
+import pytest
+
+# Environment variables that change how Textual draws (colours, theme, animations): a snapshot
+# taken with any of them set would differ from one taken on a plain CI machine.
+RENDERING_VARIABLES = ("NO_COLOR", "FORCE_COLOR", "TEXTUAL_COLOR_SYSTEM", "TEXTUAL_THEME",
+                       "TEXTUAL_ANIMATIONS", "COLORTERM")
+
+
+@pytest.fixture
+def plain_environment(monkeypatch):
+    """None of RENDERING_VARIABLES set, for SVG snapshots that match on any machine."""
+    for name in RENDERING_VARIABLES:
+        monkeypatch.delenv(name, raising=False)
