@@ -30,6 +30,7 @@ import sys
 import time
 
 from textual.screen import Screen
+from textual.widgets import Input
 
 from workbench import editing
 from workbench.app import Workbench
@@ -45,6 +46,7 @@ WARM_UP = 3
 RUNS = 3  # fresh apps per size (the machine is shared: repeat, report the spread)
 QUIET_S = 0.03  # pause between edits so each starts from an idle app
 TARGET_MS = 50.0
+POSTED, TYPED, DIALOG = "posted", "typed", "dialog"  # how an edit is made (measure)
 LID = "lid-lift"
 
 
@@ -116,12 +118,14 @@ def _watch_paint(widget, fresh) -> None:
 painted_for: dict[int, object] = {}  # id(painter) → the widget it paints for
 
 
-async def measure(size: tuple[int, int], typed: bool = False) -> list[tuple[float, float, float]]:
+async def measure(size: tuple[int, int], how: str = POSTED) -> list[tuple[float, float, float]]:
     """(edit → on screen, edit → numbers on the view, UI thread CPU) in ms for each edit after warm-up.
 
-    `typed`: the edit is typed over the span cell and the clock starts at the Enter that applies
-    it (the cell editor closes and the edit follows); otherwise the edit is posted as a view
-    posts it."""
+    `how`: POSTED, the edit is posted as a view posts it; TYPED, it is typed over the span cell and
+    the clock starts at the Enter that applies it (the cell editor closes and the edit follows);
+    DIALOG, the machine speed is typed into its dialog and the clock starts at the Enter that
+    closes the dialog (the screen under it comes back, then the edit)."""
+    typed = how == TYPED
     project = load_project(preset_path("tray-lidder"))
     app = Workbench(project)
     out = []
@@ -138,6 +142,12 @@ async def measure(size: tuple[int, int], typed: bool = False) -> list[tuple[floa
         _watch_paint(peaks, lambda: watch.fresh(axes) and peaks.result is axes.result)
         for i in range(WARM_UP + EDITS):
             span = 100.0 if i % 2 == 0 else 90.0
+            if how == DIALOG:
+                await pilot.press("m")
+                await pilot.pause()
+                app.screen.query_one("#value", Input).value = "110" if i % 2 == 0 else "120"
+                await pilot.pause()
+                await asyncio.sleep(QUIET_S)
             if typed:
                 app.query_one("#segments").move_cursor(row=0, column=2)
                 await pilot.press("enter", *f"{span:g}")
@@ -147,12 +157,12 @@ async def measure(size: tuple[int, int], typed: bool = False) -> list[tuple[floa
             visible = [p for p in plots if p.display and p.size.width]
             watch.start(app.project, [peaks, *visible])
             t0, cpu0 = time.perf_counter(), time.thread_time()
-            if typed:
+            if typed or how == DIALOG:
                 pressed = asyncio.create_task(pilot.press("enter"))
             else:
                 app.post_message(ProjectEdited(editing.set_span(app.project, LID, 0, span), "bench"))
             await asyncio.wait_for(watch.done.wait(), timeout=10.0)
-            if typed:
+            if typed or how == DIALOG:
                 await pressed
             if i >= WARM_UP:
                 out.append(((watch.t_done - t0) * 1e3, (watch.t_results - t0) * 1e3,
@@ -185,12 +195,14 @@ def main() -> None:
     _patch_app()
     print(f"edit → plots and peaks on screen, {POINTS_PER_CYCLE} points per axis (target {TARGET_MS:.0f} ms)")
     worker_alone()
-    for size, what, typed in (((80, 24), "one plot", False), ((120, 40), "four plots", False),
-                               ((80, 24), "one plot, typed over the span cell", True),
-                               ((120, 40), "four plots, typed over the span cell", True)):
+    for size, what, how in (((80, 24), "one plot", POSTED), ((120, 40), "four plots", POSTED),
+                            ((80, 24), "one plot, typed over the span cell", TYPED),
+                            ((120, 40), "four plots, typed over the span cell", TYPED),
+                            ((80, 24), "one plot, machine speed through its dialog", DIALOG),
+                            ((120, 40), "four plots, machine speed through its dialog", DIALOG)):
         edits = []
         for _ in range(runs):
-            edits += asyncio.run(measure(size, typed))
+            edits += asyncio.run(measure(size, how))
         total = [t for t, _, _ in edits]
         numbers = statistics.median(n for _, n, _ in edits)
         paint = statistics.median(t - n for t, n, _ in edits)

@@ -596,3 +596,25 @@ async def test_a_burst_of_edits_ends_with_the_numbers_of_the_last(project_file):
         v, _ = cycloidal_peaks(40.0, 115.0, 120.0)
         assert peaks(app)["velocity"]["value"] == f"{v:.4g} mm/s"
         assert app.history.undo() == "span 115"
+
+
+async def test_the_footer_is_rebuilt_only_when_its_keys_change(project_file):
+    """A dialog opened and closed brings back the same keys: the footer keeps its key widgets
+    (Textual's own footer would rebuild them all); another view's keys do replace them."""
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        before = [id(k) for k in app.query("FooterKey")]
+        shown = footer_keys(app)
+        await pilot.press("m")  # the machine speed dialog
+        await pilot.pause()
+        assert app.screen is not app.screen_stack[0]
+        await pilot.press("escape")
+        await settle(pilot)
+        assert footer_keys(app) == shown and [id(k) for k in app.query("FooterKey")] == before
+        await pilot.press("2")  # the Timing view: keys of its own
+        await settle(pilot)
+        assert footer_keys(app) != shown
+        await pilot.press("1")
+        await settle(pilot)
+        assert footer_keys(app) == shown

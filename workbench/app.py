@@ -18,7 +18,7 @@ from textual import on, work
 from textual.app import App, ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal
-from textual.widgets import ContentSwitcher, Footer, Static
+from textual.widgets import ContentSwitcher, Static
 from textual.worker import get_current_worker
 
 from .editing import EditError
@@ -31,6 +31,7 @@ from .tui.screens.confirm import ChoiceDialog
 from .tui.screens.help import HelpScreen, binding_sections
 from .tui.screens.path_prompt import PathDialog
 from .tui.views import VIEWS, WorkbenchView
+from .tui.widgets.key_footer import KeyFooter
 
 CAUTION = ("Kinematic results alone do not make a machine safe: verify with the drive maker's data, "
            "forces, fatigue, guarding and a risk assessment under the machinery-safety rules that "
@@ -96,7 +97,7 @@ class Workbench(App):
             for cls in VIEWS.values():
                 yield cls()
         yield StatusLine(id="status")
-        yield Footer(compact=True, show_command_palette=True)
+        yield KeyFooter(compact=True, show_command_palette=True)
 
     def on_mount(self) -> None:
         self._show_state()
