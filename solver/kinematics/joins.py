@@ -50,14 +50,11 @@ def _output_joins(result, output) -> tuple[OutputJoin, ...]:
         breaks = breaks[breaks - JOIN_GAP >= result.theta[0]]
     if not breaks.size:
         return ()
+    k = breaks.size
     angles = np.concatenate([breaks - JOIN_GAP, breaks])
     curve = solve_output_at(result, output, angles)
-    if curve.theta.size != angles.size:  # a side would not solve: nothing reliable to report there
-        solved = set(curve.theta.tolist())
-        keep = [k for k, b in enumerate(breaks) if b - JOIN_GAP in solved and b in solved]
-        breaks = breaks[keep]
-        angles = np.concatenate([breaks - JOIN_GAP, breaks])
-        curve = solve_output_at(result, output, angles)
-    rows = np.array([curve.value, curve.d1, curve.d2, curve.d3])
-    k = breaks.size
-    return tuple(OutputJoin(float(b), rows[:, i].copy(), rows[:, k + i].copy()) for i, b in enumerate(breaks))
+    solved = np.isin(angles, curve.theta)  # the solved angles, in order; a join needs both sides
+    rows = np.full((4, angles.size), np.nan)
+    rows[:, solved] = [curve.value, curve.d1, curve.d2, curve.d3]
+    return tuple(OutputJoin(float(b), rows[:, i].copy(), rows[:, k + i].copy())
+                 for i, b in enumerate(breaks) if solved[i] and solved[k + i])

@@ -99,8 +99,9 @@ def solve_output_at(result, output, theta: np.ndarray) -> OutputCurve:
     return curve
 
 
-def _parabola(x: np.ndarray, y: np.ndarray, k: int) -> tuple[float, float]:
-    """(x, y) of the vertex of the parabola through samples k−1, k, k+1 (the sample itself at an end)."""
+def parabola_vertex(x: np.ndarray, y: np.ndarray, k: int) -> tuple[float, float]:
+    """(x, y) of the vertex of the parabola through samples k−1, k, k+1 (the sample itself at an end,
+    or where the three make no cap: a kink or a flat top)."""
     if k == 0 or k == len(y) - 1:
         return float(x[k]), float(y[k])
     y0, y1, y2 = y[k - 1], y[k], y[k + 1]
@@ -136,12 +137,17 @@ def refined_max(result, output, signal, order: int, sign: float = 1.0) -> tuple[
         values = local.derivative(order)
         ly = sign * values if order == 0 else np.abs(values)
         k = int(np.argmax(ly))
-        at, value = _parabola(local.theta, ly, k)
+        at, value = parabola_vertex(local.theta, ly, k)
         found.append((value, at))
+    return first_of_equal(found, theta[0], periodic)
+
+
+def first_of_equal(found: list[tuple[float, float]], start: float, periodic: bool) -> tuple[float, float]:
+    """The largest of (value, master rad) pairs; of those within TIE of it, the first in the cycle from
+    `start` (or the earliest, when not periodic)."""
     best = max(value for value, _ in found)
     ties = [(value, at) for value, at in found if value >= best - TIE * abs(best)]
-    turn = 2.0 * math.pi
-    return min(ties, key=lambda f: (f[1] - theta[0]) % turn if periodic else f[1])  # the first of equal peaks
+    return min(ties, key=lambda f: (f[1] - start) % (2.0 * math.pi) if periodic else f[1])
 
 
 def cycle_breaks(result) -> np.ndarray:

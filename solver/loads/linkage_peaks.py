@@ -31,14 +31,13 @@ import math
 
 import numpy as np
 
-from motionlaws.peaksearch import TIE
 from solver.kinematics.hermite import interpolate
 from solver.kinematics.newton import derivatives, newton
-from solver.kinematics.peaks import break_reach, on_one_law
+from solver.kinematics.peaks import break_reach, first_of_equal, on_one_law, parabola_vertex
 
 PEAK_CANDIDATE = 0.99  # other sampled local maxima within this share of the best are refined too
 MAX_CANDIDATES = 8  # at most this many of the highest candidates are refined (ripple on a plateau)
-# Peaks within motionlaws' TIE of each other are equal; the first in the cycle is reported, as for an axis.
+# Peaks within motionlaws' TIE of each other are equal; the first in the cycle is reported (first_of_equal).
 LOCAL_POINTS = 65  # dense local grid over the two sample intervals around a candidate
 FULL_TURN = 2.0 * math.pi  # rad of master angle per machine cycle
 PERIODIC_GAP = 1.5  # a closing gap up to this many sample spacings still counts as a whole cycle
@@ -68,19 +67,6 @@ def local_kinematics(result, lo: float, hi: float, points: int = LOCAL_POINTS):
     d1, d2 = derivatives(system, solved, drive, orders=2)
     keep = solved.converged
     return theta[keep], solved.q[:, keep].T, d1[:, keep].T, d2[:, keep].T
-
-
-def parabola_vertex(x: np.ndarray, y: np.ndarray, k: int) -> tuple[float, float]:
-    """(x, y) of the vertex of the parabola through samples k−1, k, k+1 (the sample itself at an end)."""
-    if k == 0 or k == len(y) - 1:
-        return float(x[k]), float(y[k])
-    y0, y1, y2 = y[k - 1], y[k], y[k + 1]
-    denom = y0 - 2.0 * y1 + y2
-    if denom >= 0.0:  # not a cap (a kink or a flat top): the sample stands
-        return float(x[k]), float(y1)
-    h = x[k + 1] - x[k]
-    shift = 0.5 * (y0 - y2) / denom
-    return float(x[k] + shift * h), float(y1 - 0.25 * (y0 - y2) * shift)
 
 
 def refined_peak(theta: np.ndarray, values: np.ndarray, periodic: bool, local=None,
@@ -132,9 +118,7 @@ def refined_peak(theta: np.ndarray, values: np.ndarray, periodic: bool, local=No
         else:
             at, value = _sampled_vertex(theta, y, i, lo, hi, periodic)
         found.append((value, at))
-    most = max(value for value, _ in found)
-    ties = [(value, at) for value, at in found if value >= most - TIE * abs(most)]
-    return min(ties, key=lambda f: (f[1] - theta[0]) % FULL_TURN if periodic else f[1])  # the first of equal peaks
+    return first_of_equal(found, theta[0], periodic)
 
 
 def _sampled_vertex(theta, y, i, lo, hi, periodic) -> tuple[float, float]:
