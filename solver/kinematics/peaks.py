@@ -72,25 +72,30 @@ def _local(result, output, lo: float, hi: float) -> OutputCurve:
     return solve_output_at(result, output, np.linspace(lo, hi, LOCAL_POINTS))
 
 
+def guess_near(result, theta: np.ndarray) -> np.ndarray:
+    """q (n, N) at master angles θ (rad) from a solved result, to start Newton from: the quintic
+    Hermite interpolation of its instants, a Taylor step beyond its ends."""
+    t = result.theta
+    q, dq, ddq = result.q.T, result.dq.T, result.ddq.T
+    if t.size < 2:
+        return np.repeat(q, theta.size, axis=1)
+    guess = interpolate(t, q, dq, ddq, np.clip(theta, t[0], t[-1]))
+    outside = (theta < t[0]) | (theta > t[-1])
+    if np.any(outside):  # beyond the solved ends: Taylor from the nearest end
+        end = np.where(theta < t[0], 0, t.size - 1)
+        h = theta - t[end]
+        taylor = q[:, end] + dq[:, end] * h + 0.5 * ddq[:, end] * h * h + result.dddq.T[:, end] * h**3 / 6
+        guess[:, outside] = taylor[:, outside]
+    return guess
+
+
 def solve_output_at(result, output, theta: np.ndarray) -> OutputCurve:
     """The output solved afresh at master angles θ (rad, any order) near a solved result: a batched
     Newton from the Hermite interpolation of the result's instants (a Taylor step beyond its ends).
     Instants where Newton does not converge are left out."""
     system = result.system
-    t = result.theta
-    q, dq, ddq = result.q.T, result.dq.T, result.ddq.T
-    if t.size > 1:
-        guess = interpolate(t, q, dq, ddq, np.clip(theta, t[0], t[-1]))
-        outside = (theta < t[0]) | (theta > t[-1])
-        if np.any(outside):  # beyond the solved ends: Taylor from the nearest end
-            end = np.where(theta < t[0], 0, t.size - 1)
-            h = theta - t[end]
-            taylor = q[:, end] + dq[:, end] * h + 0.5 * ddq[:, end] * h * h + result.dddq.T[:, end] * h**3 / 6
-            guess[:, outside] = taylor[:, outside]
-    else:
-        guess = np.repeat(q, theta.size, axis=1)
     drive = system.drive(theta)
-    solved = newton(system, guess, drive, system.elimination_plan())
+    solved = newton(system, guess_near(result, theta), drive, system.elimination_plan())
     d1, d2, d3 = derivatives(system, solved, drive)
     curve = evaluate(system, output, theta, solved.q, d1, d2, d3, result.speed)
     if not solved.converged.all():

@@ -31,9 +31,8 @@ import math
 
 import numpy as np
 
-from solver.kinematics.hermite import interpolate
 from solver.kinematics.newton import derivatives, newton
-from solver.kinematics.peaks import break_reach, first_of_equal, on_one_law, parabola_vertex
+from solver.kinematics.peaks import break_reach, first_of_equal, guess_near, on_one_law, parabola_vertex
 
 PEAK_CANDIDATE = 0.99  # other sampled local maxima within this share of the best are refined too
 MAX_CANDIDATES = 8  # at most this many of the highest candidates are refined (ripple on a plateau)
@@ -50,20 +49,8 @@ def local_kinematics(result, lo: float, hi: float, points: int = LOCAL_POINTS):
     """
     system = result.system
     theta = np.linspace(lo, hi, points)
-    t = result.theta
-    q, dq, ddq = result.q.T, result.dq.T, result.ddq.T
-    if t.size > 1:
-        guess = interpolate(t, q, dq, ddq, np.clip(theta, t[0], t[-1]))
-        outside = (theta < t[0]) | (theta > t[-1])
-        if np.any(outside):  # beyond the solved ends (a periodic wrap): Taylor from the nearest end
-            end = np.where(theta < t[0], 0, t.size - 1)
-            h = theta - t[end]
-            taylor = q[:, end] + dq[:, end] * h + 0.5 * ddq[:, end] * h * h + result.dddq.T[:, end] * h**3 / 6
-            guess[:, outside] = taylor[:, outside]
-    else:
-        guess = np.repeat(q, theta.size, axis=1)
     drive = system.drive(theta)
-    solved = newton(system, guess, drive, system.elimination_plan())
+    solved = newton(system, guess_near(result, theta), drive, system.elimination_plan())
     d1, d2 = derivatives(system, solved, drive, orders=2)
     keep = solved.converged
     return theta[keep], solved.q[:, keep].T, d1[:, keep].T, d2[:, keep].T
