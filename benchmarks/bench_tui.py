@@ -124,7 +124,8 @@ async def measure(size: tuple[int, int], how: str = POSTED) -> list[tuple[float,
     `how`: POSTED, the edit is posted as a view posts it; TYPED, it is typed over the span cell and
     the clock starts at the Enter that applies it (the cell editor closes and the edit follows);
     DIALOG, the machine speed is typed into its dialog and the clock starts at the Enter that
-    closes the dialog (the screen under it comes back, then the edit)."""
+    closes the dialog (the screen under it comes back with the edit; the view computed the typed
+    value's numbers while the dialog was open, and the pause before Enter lets that finish)."""
     typed = how == TYPED
     project = load_project(preset_path("tray-lidder"))
     app = Workbench(project)

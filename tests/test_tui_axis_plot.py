@@ -249,7 +249,7 @@ async def test_a_cell_editor_closing_and_its_edit_are_painted_together(monkeypat
     import threading
 
     import workbench.app as app_module
-    import workbench.tui.widgets.cell_editing as cells_module
+    import workbench.tui.views.ahead as ahead_module
 
     app = Workbench(load_project(preset_path("tray-lidder")))
     held_when_sent = []
@@ -267,7 +267,7 @@ async def test_a_cell_editor_closing_and_its_edit_are_painted_together(monkeypat
         compute = app_module.compute_results
         slow = lambda project: gate.wait(10) and compute(project)  # noqa: E731
         monkeypatch.setattr(app_module, "compute_results", slow)
-        monkeypatch.setattr(cells_module, "compute_results", slow)
+        monkeypatch.setattr(ahead_module, "compute_results", slow)
         try:
             app.query_one("#segments").move_cursor(row=0, column=2)  # segment 1's span
             await pilot.press("enter", "1", "0", "0")
@@ -315,3 +315,97 @@ async def test_the_numbers_of_a_typed_value_are_ready_at_enter(monkeypatch):
         assert app.results_for is app.project and view.results_for is app.project
         assert app.results is view.results  # the same numbers, not computed a second time
         assert f"peak {v:.4g}" in plot(app, "velocity").title
+
+
+async def open_dialog_and_choose(pilot, how: str) -> None:
+    """Open a dialog of the Axes view and make a choice in it, as a user does (Enter not yet)."""
+    app = pilot.app
+    if how == "speed":  # the machine speed typed over its value
+        await pilot.press("m", "1", "1", "0")
+    elif how == "law":  # segment 1's law: harmonic, highlighted in the list
+        await pilot.press("l")
+        laws = app.screen.query_one("#laws")
+        laws.move_cursor(row=laws.get_row_index("harmonic"))
+    else:  # "limits": the lid lift's velocity limit typed over
+        await pilot.press("L", "9", "9", "9")
+    await pilot.pause()
+
+
+def expected_peak_velocity(how: str) -> float:
+    """Segment 1 of the lid lift (40 mm over 90° at 120 cycles/min) after the dialog's edit."""
+    if how == "speed":
+        return cycloidal_peak_velocity(40.0, 90.0, 110.0)  # 586.7 mm/s
+    if how == "law":  # harmonic rise: Cv = π/2 (handbook value from memory, Norton)
+        return np.pi / 2 * 40.0 / (90.0 / 360.0 * 60.0 / 120.0)  # 418.9 mm/s
+    return cycloidal_peak_velocity(40.0, 90.0, 120.0)  # 640 mm/s: a limit moves no curve
+
+
+@pytest.mark.parametrize("how", ["speed", "law", "limits"])
+async def test_the_numbers_of_a_dialogs_choice_are_ready_when_it_closes(monkeypatch, how):
+    """What a dialog would make is computed while the dialog is open; Enter paints the edit
+    without waiting for the app's own numbers."""
+    import threading
+
+    import workbench.app as app_module
+
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        view = app.query_one("#axes")
+        base = app.screen
+        gate = threading.Event()  # the app's own numbers for the edit wait at the gate
+        compute = app_module.compute_results
+        monkeypatch.setattr(app_module, "compute_results", lambda project: gate.wait(10) and compute(project))
+        try:
+            await open_dialog_and_choose(pilot, how)
+            assert app.screen is not base
+            await app.workers.wait_for_complete()  # the view's numbers of the choice
+            await pilot.press("enter")
+            await pilot.pause()
+            assert app.screen is base and app.history.modified
+            assert view.results_for is app.project and not view.holding  # painted without the app's numbers
+            assert app.results_for is not app.project
+            v = expected_peak_velocity(how)
+            assert app.query_one("#peaks").rows["velocity"]["value"] == f"{v:.4g} mm/s"
+        finally:
+            gate.set()
+        await settle(pilot)
+        assert app.results is view.results  # the same numbers, not computed a second time
+        if how == "limits":
+            assert app.project.axis(LID).limits.velocity == 999.0
+
+
+async def test_a_dialog_closing_and_its_edit_are_painted_together():
+    """Screen updates are held from the moment the dialog closes with an edit: the screen under
+    it comes back in the same update as the edit's numbers, not in one of its own before them."""
+    from textual import events
+
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    held_at = {}
+
+    def hook(message) -> None:
+        if isinstance(message, (events.ScreenResume, ProjectEdited)) and app.is_running:
+            held_at.setdefault(type(message).__name__, app.query_one("#axes").holding)
+
+    async with app.run_test(size=(80, 24), message_hook=hook) as pilot:
+        await settle(pilot)
+        await pilot.press("m", "1", "1", "0")
+        held_at.clear()
+        await pilot.press("enter")
+        await settle(pilot)
+        assert held_at == {"ScreenResume": True, "ProjectEdited": True}
+        assert app.project.speed == 110.0 and not app.query_one("#axes").holding
+
+
+async def test_a_dialog_cancelled_after_a_choice_changes_nothing():
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        before = app.project
+        view = app.query_one("#axes")
+        await open_dialog_and_choose(pilot, "speed")
+        await app.workers.wait_for_complete()
+        await pilot.press("escape")
+        await settle(pilot)
+        assert app.project is before and not app.history.modified and not view.holding
+        assert view.take_ahead(before) is None and view._wanted is None

@@ -8,17 +8,17 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
-from textual.screen import ModalScreen
 from textual.widgets import Input, Label, Select, Static
 
 from motionlaws import law_ids
 
 from ...editing import EditError, parse_number
+from .model_dialog import ModelDialog
 
 AddAttempt = Callable[[str, float, float | None, int], Any]
 
 
-class AddSegmentDialog(ModalScreen):
+class AddSegmentDialog(ModelDialog):
     """Law, span [deg], end position (moving laws) and the segment that gives the span."""
 
     BINDINGS = [Binding("escape", "cancel", "Cancel", tooltip="Add nothing")]
@@ -66,13 +66,15 @@ class AddSegmentDialog(ModalScreen):
                                 units=("deg", "°"))
             to = None if law == "dwell" else parse_number(self.query_one("#to", Input).value, "to",
                                                            units=(self.unit,))
-            result = self.attempt(law, span, to, int(self.query_one("#donor", Select).value))
+            donor = int(self.query_one("#donor", Select).value)
+            result = self.tried((law, span, to, donor), lambda: self.attempt(law, span, to, donor))
         except EditError as exc:
             self.error = exc.message
             feedback.update(Text(f"✗ {exc.message}", style="bold red"))
             return None
         self.error = None
         feedback.update(Text(f"✓ {self.explain(result)}", style="green"))
+        self.offer(result)
         return result
 
     def on_input_changed(self, event: Input.Changed) -> None:
@@ -87,7 +89,4 @@ class AddSegmentDialog(ModalScreen):
         if result is None:
             self.app.bell()
         else:
-            self.dismiss(result)
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)
+            self.accept(result)

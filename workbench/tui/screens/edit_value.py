@@ -16,10 +16,10 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
-from textual.screen import ModalScreen
 from textual.widgets import Input, Label, Select, Static
 
 from ...editing import EditError
+from .model_dialog import ModelDialog
 
 Attempt = Callable[[str, Any], Any]
 Explain = Callable[[Any], str]
@@ -35,7 +35,7 @@ def try_value(attempt: Attempt, explain: Explain | None, text: str, choice: Any)
     return result, None, Text(f"✓ {preview}" if preview else "✓ ok", style="green")
 
 
-class EditDialog(ModalScreen):
+class EditDialog(ModelDialog):
     """Type a value (and optionally pick who gives or takes the difference)."""
 
     BINDINGS = [Binding("escape", "cancel", "Cancel", tooltip="Close without changing anything")]
@@ -79,8 +79,13 @@ class EditDialog(ModalScreen):
     def _check(self) -> Any:
         """Try the typed value; show the reason or the preview; return the result or None."""
         text, choice = self._current()
-        result, self.error, line = try_value(self.attempt, self.explain, text, choice)
+
+        def attempt(t: str, c: Any) -> Any:
+            return self.tried((t, c), lambda: self.attempt(t, c))
+
+        result, self.error, line = try_value(attempt, self.explain, text, choice)
         self.query_one("#feedback", Static).update(line)
+        self.offer(result)
         return result
 
     def on_input_changed(self, event: Input.Changed) -> None:
@@ -93,9 +98,6 @@ class EditDialog(ModalScreen):
         event.stop()
         result = self._check()
         if result is not None:
-            self.dismiss(result)
+            self.accept(result)
         else:
             self.app.bell()
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)

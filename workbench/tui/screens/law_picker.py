@@ -8,10 +8,10 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
-from textual.screen import ModalScreen
 from textual.widgets import DataTable, Label, Static
 
 from ...editing import EditError, law_table
+from .model_dialog import ModelDialog
 
 NOTES = {  # what a designer needs to know beside the coefficients
     "dwell": "holds position",
@@ -22,7 +22,7 @@ NOTES = {  # what a designer needs to know beside the coefficients
 }
 
 
-class LawPicker(ModalScreen):
+class LawPicker(ModelDialog):
     """Choose a law; Cv, Ca, Cj are max |y'|, |y''|, |y'''| of the normalized rise."""
 
     BINDINGS = [Binding("escape", "cancel", "Cancel", tooltip="Keep the law as it is")]
@@ -57,17 +57,23 @@ class LawPicker(ModalScreen):
             table.move_cursor(row=ids.index(self.current), animate=False)
         table.focus()
 
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        """The law under the cursor may be the one: its numbers can start now."""
+        event.stop()
+        try:
+            law = str(event.row_key.value)
+            self.offer(self.tried(law, lambda: self.attempt(law)))
+        except EditError:
+            pass  # refused: Enter will say why
+
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
         event.stop()
         law = str(event.row_key.value)
         try:
-            result = self.attempt(law)
+            result = self.tried(law, lambda: self.attempt(law))
         except EditError as exc:
             self.error = exc.message
             self.query_one("#feedback", Static).update(Text(f"✗ {exc.message}", style="bold red"))
             self.app.bell()
             return
-        self.dismiss(result)
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)
+        self.accept(result)

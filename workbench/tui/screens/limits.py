@@ -8,16 +8,16 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
-from textual.screen import ModalScreen
 from textual.widgets import Input, Label, Static
 
 from motionlaws import Limits
 
 from ...editing import QUANTITIES, EditError, parse_number
 from ..format import unit_of
+from .model_dialog import ModelDialog
 
 
-class LimitsDialog(ModalScreen):
+class LimitsDialog(ModelDialog):
     """Three inputs; every key re-checks all three, Enter applies when all are accepted."""
 
     BINDINGS = [Binding("escape", "cancel", "Cancel", tooltip="Keep the limits as they are")]
@@ -54,13 +54,15 @@ class LimitsDialog(ModalScreen):
     def _check(self):
         feedback = self.query_one("#feedback", Static)
         try:
-            result = self.attempt(self._parsed())
+            typed = tuple(self.query_one(f"#{q}", Input).value for q in QUANTITIES)
+            result = self.tried(typed, lambda: self.attempt(self._parsed()))
         except EditError as exc:
             self.error = exc.message
             feedback.update(Text(f"✗ {exc.message}", style="bold red"))
             return None
         self.error = None
         feedback.update(Text("✓ ok", style="green"))
+        self.offer(result)
         return result
 
     def on_input_changed(self, event: Input.Changed) -> None:
@@ -72,7 +74,4 @@ class LimitsDialog(ModalScreen):
         if result is None:
             self.app.bell()
         else:
-            self.dismiss(result)
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)
+            self.accept(result)

@@ -15,12 +15,17 @@ frames after the first.
 The typed cells (span, end position, time) are edited in place
 (`widgets.cell_editing`, `widgets.cell_editor`): the value is typed over the
 cell while the focus stays on the table, and the view hands the editor its
-keys; the numbers of what is typed are computed while it is typed.  A dialog screen
-closing cost more than the edit itself: Textual repaints the whole screen it
-resumes, and the footer rebuilds its keys (any focus change does that too),
-some 50 ms before the edit reached the worker.  In place, closing the editor
-costs one layout pass.  The footer shows the editor's keys while it is open,
-and the view's again once the edit is on screen.
+keys; the numbers of what is typed are computed while it is typed.  In place,
+closing the editor costs one layout pass, where a dialog screen closing makes
+Textual repaint the whole screen under it.  The footer shows the editor's
+keys while it is open, and the view's again once the edit is on screen.
+
+The other edits that need typing or choosing (law, machine speed, limits, a
+new segment) open a dialog (`screens.model_dialog.ModelDialog`).  The view
+computes the numbers of what the dialog would make while it is open
+(`views.ahead.NumbersAhead`, as for the cells) and holds screen updates from
+the moment it closes with an edit, so the screen under it is repainted once,
+with the edit's numbers.
 """
 
 from __future__ import annotations
@@ -38,12 +43,14 @@ from ...projectfile import Project
 from ..compute import AxisResult
 from ..format import axis_verdict, number
 from ..messages import ProjectEdited, Status
+from ..screens.model_dialog import ModelDialog
 from ..widgets.axis_plots import PlotPanel
 from ..widgets.cell_editing import CellsInPlace
 from ..widgets.cell_editor import CellField, EditNote
 from ..widgets.peaks_panel import PeaksPanel
 from ..widgets.segment_table import SegmentTable
 from . import axes_dialogs as dialogs
+from .ahead import NumbersAhead
 from .axis_rename import start_rename
 from .base import WorkbenchView
 
@@ -57,7 +64,7 @@ class AxisBar(Static):
     DEFAULT_CSS = "AxisBar { height: 1; }"
 
 
-class AxesView(CellsInPlace, WorkbenchView):
+class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
     view_id = "axes"
     title = "Axes"
 
@@ -108,6 +115,7 @@ class AxesView(CellsInPlace, WorkbenchView):
         """The screen-update batch held until the numbers come (None: not holding)."""
         self._hold_timer = None
         self._init_cells()
+        self._init_ahead()
 
     def compose(self) -> ComposeResult:
         yield AxisBar(id="axis-bar")
@@ -135,7 +143,7 @@ class AxesView(CellsInPlace, WorkbenchView):
             self.axis_name = names[min(at, len(names) - 1)] if names else None
         self._refresh_axis()
         ahead = self.take_ahead(project)
-        if ahead is not None:  # typed in place: its numbers are here already
+        if ahead is not None:  # typed in a cell or a dialog: its numbers are here already
             self.show_results(project, ahead)
 
     def show_results(self, project: Project, results: dict[str, AxisResult]) -> None:
@@ -228,8 +236,12 @@ class AxesView(CellsInPlace, WorkbenchView):
     def _index(self) -> int:
         return self.query_one(SegmentTable).segment_index
 
-    def _open(self, build: Callable[[], tuple]) -> None:
-        """Open a dialog built from the current project; its result becomes an edit."""
+    def _open(self, build: Callable[[], tuple[ModelDialog, str]]) -> None:
+        """Open a dialog built from the current project; its result becomes an edit.
+
+        What the dialog would make is computed while it is typed, and screen
+        updates are held from the moment it closes with an edit, so the
+        screen under it comes back in the same update as the edit's numbers."""
         if self.project is None or self.axis_name is None:
             return
         try:
@@ -242,10 +254,12 @@ class AxesView(CellsInPlace, WorkbenchView):
         def done(project: Project | None) -> None:
             if project is None:
                 self._cursor_after = None
+                self.drop_ahead()
             else:
-                self._hold()  # the dialog closing and the edit reach the screen together
+                self._hold()  # held already (closing), unless the dialog dismissed itself
                 self.post_message(ProjectEdited(project, note))
 
+        screen.listen(candidate=self.want_numbers, closing=self._hold)
         self.app.push_screen(screen, done)
 
     def _apply(self, edit: Callable[[], Project], note: str) -> bool:

@@ -6,12 +6,11 @@ as usual.  Enter applies (`action_apply_edit`, in turn with the typed keys):
 the editor closes, screen updates are held (the host's `_hold`) and the edit
 goes up as `ProjectEdited`, so the editor's closing and the edit are painted
 together.
-The numbers of what is typed are computed while it is typed (a thread
-worker), so Enter finds them done: the host's `show_project` hands them to
-`show_results` with `take_ahead`.
+The numbers of what is typed are computed while it is typed (the host's
+`want_numbers`, `views.ahead.NumbersAhead`), so Enter finds them done.
 
-The host provides `project`, `axis_name`, `_hold()`, `show_results(project,
-results)`, `action_edit_cell()`, a `SegmentTable`, a `CellField` and an
+The host provides `project`, `axis_name`, `_hold()`, `want_numbers(project)`,
+`drop_ahead()`, `action_edit_cell()`, a `SegmentTable`, a `CellField` and an
 `EditNote` among its children, and bindings for `apply_edit` (enter,
 priority) and `cancel_edit` (escape); it calls
 `_init_cells()` in `__init__` and `_mount_cells()` on mount.
@@ -21,15 +20,12 @@ from __future__ import annotations
 
 from typing import Callable
 
-from textual import events, work
+from textual import events
 from textual.geometry import Region
 from textual.message import Message
 from textual.widgets import DataTable
-from textual.worker import get_current_worker
 
 from ...editing import EditError
-from ...projectfile import Project
-from ..compute import AxisResult, compute_results
 from ..messages import ProjectEdited, Status
 from .cell_editor import CellEdit, CellEditor, CellField, EditNote
 from .segment_table import SegmentTable
@@ -52,16 +48,9 @@ class CellsInPlace:
         """The note of the edit open in place (for undo and the status line)."""
         self._footer_stale = False
         """True when the footer still shows the editor's keys after it closed with an edit."""
-        self._ahead: tuple[Project, dict[str, AxisResult]] | None = None
-        """The numbers of the state the open editor would make, computed while it is typed."""
 
     def _mount_cells(self) -> None:
         self.editor = CellEditor(self.query_one(CellField), self.query_one(EditNote))
-
-    def take_ahead(self, project: Project) -> dict[str, AxisResult] | None:
-        """The numbers of `project` if they were computed while it was typed (once)."""
-        ahead, self._ahead = self._ahead, None
-        return ahead[1] if ahead is not None and ahead[0] is project else None
 
     def relabel_footer(self) -> None:
         """After an edit made in place is on screen: the footer shows the view's keys again."""
@@ -103,7 +92,7 @@ class CellsInPlace:
         return Region(origin.x + x, origin.y + y, columns[column].get_render_width(table), 1)
 
     def _close_editor(self) -> None:
-        self._ahead = None
+        self.drop_ahead()
         if self.editing:
             self.editor.close()
             self.refresh_bindings()
@@ -166,20 +155,8 @@ class CellsInPlace:
     def _compute_ahead(self) -> None:
         """Start the numbers of what is typed now, so that Enter finds them done."""
         project = self.editor.result if self.editing else None
-        if project is None or self.editor.unchanged or (self._ahead and self._ahead[0] is project):
-            return
-        self._ahead = None
-        self._numbers_ahead(project)
-
-    @work(thread=True, exclusive=True, group="cell-ahead", exit_on_error=False)
-    def _numbers_ahead(self, project: Project) -> None:
-        results = compute_results(project)
-        if not get_current_worker().is_cancelled:
-            self.app.call_from_thread(self._ahead_done, project, results)
-
-    def _ahead_done(self, project: Project, results: dict[str, AxisResult]) -> None:
-        if self.editing and self.editor.result is project:
-            self._ahead = (project, results)
+        if project is not None and not self.editor.unchanged:
+            self.want_numbers(project)
 
     def on_data_table_cell_highlighted(self, event: DataTable.CellHighlighted) -> None:
         if self.editing:
