@@ -618,3 +618,72 @@ async def test_the_footer_is_rebuilt_only_when_its_keys_change(project_file):
         await pilot.press("1")
         await settle(pilot)
         assert footer_keys(app) == shown
+
+
+async def type_in_a_bunch(pilot, *keys: str) -> None:
+    """Keys arriving together, as a quick hand or a slow SSH link delivers them: all are in the
+    app's queue before the first is handled (the pilot's `press` waits between keys)."""
+    from textual import events
+
+    for key in keys:
+        character = key if len(key) == 1 else ("\r" if key == "enter" else None)
+        pilot.app.post_message(events.Key(key, character))
+    await settle(pilot)
+
+
+@pytest.mark.parametrize("keys, check", [
+    (("m", "1", "1", "0", "enter"), lambda p: p.speed == 110.0),
+    (("L", "9", "9", "9", "enter"), lambda p: p.axis(LID).limits.velocity == 999.0),
+    (("l", "down", "enter"), lambda p: p.axis(LID).segments[0].law == law_ids()[law_ids().index("cycloidal") + 1]),
+])
+async def test_keys_typed_right_after_a_dialog_key_go_to_the_dialog(keys, check):
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        base = app.screen
+        await type_in_a_bunch(pilot, *keys)
+        assert app.screen is base and check(app.project)
+        assert app.history.can_undo and not app.query_one(AxesView).holding
+
+
+async def test_a_dialog_closed_on_the_value_it_opened_with_changes_nothing():
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        before = app.project
+        await pilot.press("m", "enter")
+        await settle(pilot)
+        assert app.project is before and not app.history.can_undo and not app.history.modified
+        assert "nothing changed" in app.status_text and not app.query_one(AxesView).holding
+
+
+async def test_the_law_list_says_what_the_law_under_the_cursor_would_do():
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("l")
+        picker = app.screen
+        laws = picker.query_one("#laws", DataTable)
+        laws.move_cursor(row=laws.get_row_index("poly345"))
+        await pilot.pause()
+        # the 3-4-5 rise of 40 mm in 90° at 120 cycles/min: j = Cj·h/T³ with Cj = 60 (handbook
+        # value from memory, Norton); it is the axis's largest jerk, against its 700,000 mm/s³
+        t = 90.0 / 360.0 * 60.0 / 120.0
+        share = 60.0 * 40.0 / t**3 / 700_000.0
+        feedback = str(picker.query_one("#feedback").render())
+        assert "segment 1: cycloidal → poly345" in feedback
+        assert f"jerk at {share * 100:.0f} % of its limit, LIMIT EXCEEDED" in feedback
+        assert app.project.axis(LID).segments[0].law == "cycloidal"  # only a preview
+
+
+async def test_the_speed_dialog_says_which_axis_a_speed_would_push_hardest():
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("m", "1", "0", "0")
+        # tray-pusher's modified-trapezoid push of 180 mm in 120° at 100 cycles/min: v = Cv·h/T
+        # with Cv = 2 (handbook value from memory), against its 2,500 mm/s
+        t = 120.0 / 360.0 * 60.0 / 100.0
+        share = 2.0 * 180.0 / t / 2500.0
+        feedback = str(app.screen.query_one("#feedback").render())
+        assert f"tray-pusher velocity at {share * 100:.0f} % of its limit, all axes within limits" in feedback

@@ -69,6 +69,11 @@ class Project:
     path: Path | None = None
     source_text: str | None = None  # the text it was loaded from: saves keep its comments
 
+    def same_content(self, other: Project) -> bool:
+        """True when `other` would write the same machine, axes and parts (an edit that
+        changes nothing)."""
+        return self.machine == other.machine and self.axes == other.axes and self.parts == other.parts
+
     def axis(self, name: str) -> Axis:
         for axis in self.axes:
             if axis.name == name:

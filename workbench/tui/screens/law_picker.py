@@ -27,11 +27,14 @@ class LawPicker(ModelDialog):
 
     BINDINGS = [Binding("escape", "cancel", "Cancel", tooltip="Keep the law as it is")]
 
-    def __init__(self, title: str, current: str, attempt: Callable[[str], Any]):
+    def __init__(self, title: str, current: str, attempt: Callable[[str], Any],
+                 explain: Callable[[Any], str] | None = None):
         super().__init__()
         self.title_text = title
         self.current = current
         self.attempt = attempt
+        self.explain = explain
+        """What the law under the cursor would do, in a line (shown as it is highlighted)."""
         self.error: str | None = None
 
     def compose(self) -> ComposeResult:
@@ -58,13 +61,18 @@ class LawPicker(ModelDialog):
         table.focus()
 
     def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
-        """The law under the cursor may be the one: its numbers can start now."""
+        """The law under the cursor: what it would do, or why it cannot be; its numbers start."""
         event.stop()
+        law = str(event.row_key.value)
+        feedback = self.query_one("#feedback", Static)
         try:
-            law = str(event.row_key.value)
-            self.offer(self.tried(law, lambda: self.attempt(law)))
-        except EditError:
-            pass  # refused: Enter will say why
+            result = self.tried(law, lambda: self.attempt(law))
+        except EditError as exc:
+            feedback.update(Text(f"✗ {exc.message}", style="bold red"))
+            return
+        preview = self.explain(result) if self.explain else ""
+        feedback.update(Text(f"✓ {preview}" if preview else "", style="green"))
+        self.offer(result)
 
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
         event.stop()

@@ -22,8 +22,11 @@ class LimitsDialog(ModelDialog):
 
     BINDINGS = [Binding("escape", "cancel", "Cancel", tooltip="Keep the limits as they are")]
 
-    def __init__(self, axis_name: str, unit: str, limits: Limits, attempt: Callable[[Limits], Any]):
+    def __init__(self, axis_name: str, unit: str, limits: Limits, attempt: Callable[[Limits], Any],
+                 explain: Callable[[Any], str] | None = None):
         super().__init__()
+        self.explain = explain
+        """The axis's verdict under the typed limits, in a line."""
         self.axis_name = axis_name
         self.unit = unit
         self.limits = limits
@@ -61,7 +64,8 @@ class LimitsDialog(ModelDialog):
             feedback.update(Text(f"✗ {exc.message}", style="bold red"))
             return None
         self.error = None
-        feedback.update(Text("✓ ok", style="green"))
+        preview = self.explain(result) if self.explain else ""
+        feedback.update(Text(f"✓ {preview or 'ok'}", style="green"))
         self.offer(result)
         return result
 

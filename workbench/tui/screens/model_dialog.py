@@ -6,16 +6,19 @@ numbers can be computed before Enter; `closing()` is called just before an
 accepted model is handed back and the dialog leaves, so the one who listens
 can hold screen updates and the screen under the dialog comes back in the
 same update as the edit's plots (Textual repaints a resumed screen whole).
+
+Keys typed right after the one that opened it go to its first field
+(`screens.typed_ahead.FieldDialog`).
 """
 
 from __future__ import annotations
 
 from typing import Any, Callable
 
-from textual.screen import ModalScreen
+from .typed_ahead import FieldDialog
 
 
-class ModelDialog(ModalScreen):
+class ModelDialog(FieldDialog):
     """A modal dialog returning an edited model, or None when cancelled."""
 
     def __init__(self) -> None:

@@ -9,13 +9,13 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
-from textual.screen import ModalScreen
 from textual.widgets import Input, Label, Static
 
 from ...editing import EditError
+from .typed_ahead import FieldDialog
 
 
-class PathDialog(ModalScreen):
+class PathDialog(FieldDialog):
     BINDINGS = [Binding("escape", "cancel", "Cancel", tooltip="Close without doing anything")]
 
     def __init__(self, title: str, path: str, attempt: Callable[[Path], Any], hint: str = ""):

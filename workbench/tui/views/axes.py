@@ -72,6 +72,8 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
     AxesView { layers: default editor; }
     """
 
+    # A key that opens a dialog is a priority binding: it runs as the app receives it, so the keys
+    # typed right after it (in a bunch over SSH) go to the dialog, not to the table under it.
     BINDINGS = [
         Binding("enter", "edit_cell", "Edit", priority=True,
                 tooltip="Edit the cell under the cursor: law, span, end position or time", id="edit"),
@@ -80,17 +82,17 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
                 id="apply"),
         Binding("escape", "cancel_edit", "Cancel", tooltip="Close the cell being edited; nothing changes",
                 id="cancel"),
-        Binding("l", "law", "Law", show=False, tooltip="Choose the law of the segment from the list with Cv, Ca, Cj"),
-        Binding("a", "add", "Add", tooltip="Insert a segment after this one; its span comes from another"),
+        Binding("l", "law", "Law", show=False, priority=True, tooltip="Choose the law of the segment from the list with Cv, Ca, Cj"),
+        Binding("a", "add", "Add", priority=True, tooltip="Insert a segment after this one; its span comes from another"),
         Binding("d,delete", "delete", "Del", tooltip="Delete the segment; a neighbouring dwell takes its span"),
         Binding("s", "split", "Split", show=False, tooltip="Halve the segment into two of the same law meeting halfway"),
         Binding("left_square_bracket", "move(-1)", "Earlier", show=False, key_display="[",
                 tooltip="Move the segment one place earlier in the cycle"),
         Binding("right_square_bracket", "move(1)", "Later", show=False, key_display="]",
                 tooltip="Move the segment one place later in the cycle"),
-        Binding("m", "speed", "Speed", tooltip="Change the machine speed (cycles/min)"),
-        Binding("n", "rename", "Rename", show=False, tooltip="Rename the axis; its cams and linkage drivers follow"),
-        Binding("L", "limits", "Limits", key_display="L",
+        Binding("m", "speed", "Speed", priority=True, tooltip="Change the machine speed (cycles/min)"),
+        Binding("n", "rename", "Rename", show=False, priority=True, tooltip="Rename the axis; its cams and linkage drivers follow"),
+        Binding("L", "limits", "Limits", key_display="L", priority=True,
                 tooltip="Velocity, acceleration and jerk limits of this axis"),
         Binding("comma", "cycle_axis(-1)", "Prev axis", key_display=",", show=False,
                 tooltip="Show the previous axis"),
@@ -236,7 +238,7 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
     def _index(self) -> int:
         return self.query_one(SegmentTable).segment_index
 
-    def _open(self, build: Callable[[], tuple[ModelDialog, str]]) -> None:
+    def _open(self, build: Callable[[], tuple[ModelDialog, dialogs.Note]]) -> None:
         """Open a dialog built from the current project; its result becomes an edit.
 
         What the dialog would make is computed while it is typed, and screen
@@ -252,12 +254,15 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
             return
 
         def done(project: Project | None) -> None:
-            if project is None:
+            if project is None or project.same_content(self.project):
                 self._cursor_after = None
                 self.drop_ahead()
+                self._release()  # held as it closed: nothing is coming
+                if project is not None:
+                    self.post_message(Status("nothing changed: the value is the one the project has"))
             else:
                 self._hold()  # held already (closing), unless the dialog dismissed itself
-                self.post_message(ProjectEdited(project, note))
+                self.post_message(ProjectEdited(project, note if isinstance(note, str) else note(project)))
 
         screen.listen(candidate=self.want_numbers, closing=self._hold)
         self.app.push_screen(screen, done)

@@ -8,21 +8,25 @@ that names the edit for undo and the status line.
 
 from __future__ import annotations
 
-from textual.screen import ModalScreen
+from typing import Callable
 
 from motionlaws import analyse
 
 from ... import editing
 from ...editing import EditError, parse_number, segment_ends
 from ...projectfile import Project
-from ..format import number
+from ..format import number, unit_of
 from ..screens.add_segment import AddSegmentDialog
 from ..screens.edit_value import EditDialog
 from ..screens.law_picker import LawPicker
 from ..screens.limits import LimitsDialog
+from ..screens.model_dialog import ModelDialog
 from ..widgets.cell_editor import CellEdit
 
 DEGREE_UNITS = ("deg", "°")
+
+Note = str | Callable[[Project], str]
+"""What names a dialog's edit for undo and the status line: words, or words made from the result."""
 
 
 def describe(old: Project, new: Project, axis_name: str) -> str:
@@ -43,18 +47,43 @@ def describe(old: Project, new: Project, axis_name: str) -> str:
             parts.append(f"segment {i} ends at {ends_b[i - 1][1]:g} {a.unit} (was {ends_a[i - 1][1]:g})")
     if a.limits != b.limits:
         parts.append("limits changed")
-    return ("; ".join(parts) if parts else "no change") + verdict_after(new, axis_name)
+    if not parts:
+        worst = most_used(new, [axis_name])
+        return "no change" + (f" — now: {worst}" if worst else "")
+    return "; ".join(parts) + verdict_after(new, axis_name)
+
+
+def most_used(project: Project, axis_names: list[str]) -> str:
+    """"jerk at 116 % of its limit, LIMIT EXCEEDED": the most used limit of the named axes
+    (the axis named too when there are several); "" when none has limits."""
+    worst, ok = None, True
+    for name in axis_names:
+        report = analyse(project.programs[name], project.speed)
+        ok = ok and report.ok
+        for check in report.checks:
+            if worst is None or check.used > worst[1].used:
+                worst = (name, check)
+    if worst is None:
+        return ""
+    name, check = worst
+    share = "∞" if check.used == float("inf") else f"{check.used * 100:.0f} %"
+    state = ("all within limits" if len(axis_names) == 1 else "all axes within limits") if ok \
+        else "LIMIT EXCEEDED"
+    who = f"{name} " if len(axis_names) > 1 else ""
+    return f"{who}{check.quantity} at {share} of its limit, {state}"
 
 
 def verdict_after(project: Project, axis_name: str) -> str:
-    """" — then: jerk 49 % of limit (the most used), all within" for the edited axis."""
-    report = analyse(project.programs[axis_name], project.speed)
-    if not report.checks:
-        return ""
-    worst = max(report.checks, key=lambda c: c.used)
-    share = "∞" if worst.used == float("inf") else f"{worst.used * 100:.0f} %"
-    state = "all within limits" if report.ok else "LIMIT EXCEEDED"
-    return f" — then: {worst.quantity} at {share} of its limit, {state}"
+    """" — then: jerk at 49 % of its limit, all within limits" for the edited axis."""
+    worst = most_used(project, [axis_name])
+    return f" — then: {worst}" if worst else ""
+
+
+def verdict_all(project: Project) -> str:
+    """" — then: lid-lift jerk at 116 % of its limit, LIMIT EXCEEDED" over every axis (a
+    machine speed moves them all)."""
+    worst = most_used(project, [a.name for a in project.axes])
+    return f" — then: {worst}" if worst else ""
 
 
 def _choices(project: Project, axis_name: str, skip: int | None) -> list[tuple[str, int]]:
@@ -133,14 +162,19 @@ def end_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, st
     return edit, f"end position of segment {index + 1}"
 
 
-def law_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen, str]:
+def law_dialog(project: Project, axis_name: str, index: int) -> tuple[ModelDialog, Note]:
     seg = project.axis(axis_name).segments[index]
     screen = LawPicker(f"Law of segment {index + 1} ({seg.law}, {seg.span:g}°), axis {axis_name}",
-                       seg.law, lambda law: editing.set_law(project, axis_name, index, law))
-    return screen, f"law of segment {index + 1}"
+                       seg.law, lambda law: editing.set_law(project, axis_name, index, law),
+                       lambda p: describe(project, p, axis_name))
+
+    def note(p: Project) -> str:
+        return f"law of segment {index + 1}: {seg.law} → {p.axis(axis_name).segments[index].law}"
+
+    return screen, note
 
 
-def speed_dialog(project: Project) -> tuple[ModalScreen, str]:
+def speed_dialog(project: Project) -> tuple[ModelDialog, Note]:
     m = project.machine
     form = " (the file gives cycle_time; it is kept in that form)" if m.speed is None else ""
 
@@ -149,21 +183,41 @@ def speed_dialog(project: Project) -> tuple[ModalScreen, str]:
                                                        units=("cycles/min", "cpm", "/min")))
 
     def explain(p: Project) -> str:
-        return f"{number(p.speed, 'cycles/min')} = {number(60_000.0 / p.speed, 'ms')} per cycle"
+        return (f"{number(p.speed, 'cycles/min')} = {number(60_000.0 / p.speed, 'ms')} per cycle"
+                + verdict_all(p))
+
+    def note(p: Project) -> str:
+        return f"machine speed {number(project.speed, 'cycles/min')} → {number(p.speed, 'cycles/min')}"
 
     screen = EditDialog("Machine speed", f"speed [cycles/min]{form}:", f"{project.speed:g}",
                         attempt, explain)
-    return screen, "machine speed"
+    return screen, note
 
 
-def limits_dialog(project: Project, axis_name: str) -> tuple[ModalScreen, str]:
+def limits_dialog(project: Project, axis_name: str) -> tuple[ModelDialog, Note]:
     axis = project.axis(axis_name)
     screen = LimitsDialog(axis_name, axis.unit, axis.limits,
-                          lambda limits: editing.set_limits(project, axis_name, limits))
-    return screen, f"limits of axis {axis_name}"
+                          lambda limits: editing.set_limits(project, axis_name, limits),
+                          lambda p: most_used(p, [axis_name]))
+
+    def note(p: Project) -> str:
+        return f"limits of axis {axis_name}: " + limits_change(axis, p.axis(axis_name))
+
+    return screen, note
 
 
-def add_dialog(project: Project, axis_name: str, index: int) -> tuple[ModalScreen, str]:
+def limits_change(before, after) -> str:
+    """"velocity 900 → 999 mm/s, jerk none → 5e+05 mm/s³": the limits that differ."""
+    parts = []
+    for (q, old), (_, new) in zip(before.limits.items(), after.limits.items()):
+        if old != new:
+            unit = unit_of(q, before.unit)
+            parts.append(f"{q} {'none' if old is None else f'{old:g}'} → "
+                         f"{'none' if new is None else f'{new:g}'} {unit}")
+    return ", ".join(parts) or "unchanged"
+
+
+def add_dialog(project: Project, axis_name: str, index: int) -> tuple[ModelDialog, Note]:
     axis = project.axis(axis_name)
     position = segment_ends(axis)[index][1]
     donor = editing.default_donor(axis, index)

@@ -72,6 +72,8 @@ class CamView(WorkbenchView):
     #cam-empty { padding: 1 2; }
     """
 
+    # Keys that open a dialog are priority bindings: the keys typed right after reach the dialog
+    # (`screens.typed_ahead`).
     BINDINGS = [
         Binding("right", f"step({COARSE_STEP:g})", f"+{COARSE_STEP:g}°", key_display="→", priority=True,
                 tooltip=f"Turn the cam {COARSE_STEP:g}° on"),
@@ -84,9 +86,9 @@ class CamView(WorkbenchView):
         Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Cam angle back to 0°"),
         Binding("w", "worst", "Worst spot", tooltip="Turn to the largest pressure angle, the least radius, "
                 "then any undercut, cusp or corner, in turn"),
-        Binding("s", "sizes", "Sizes", tooltip="Change a size of the follower: prime or base circle, roller, "
+        Binding("s", "sizes", "Sizes", priority=True, tooltip="Change a size of the follower: prime or base circle, roller, "
                 "offset, face, arm (refused with the reason where the cam cannot take it)", id="cam-sizes"),
-        Binding("e", "export", "Export", tooltip="Write the profile as CSV, DXF or SVG (the writer of "
+        Binding("e", "export", "Export", priority=True, tooltip="Write the profile as CSV, DXF or SVG (the writer of "
                 "camwright profile)", id="cam-export"),
         Binding("comma", "cycle_cam(-1)", "Prev cam", key_display=",", show=False, tooltip="Show the previous cam"),
         Binding("full_stop", "cycle_cam(1)", "Next cam", key_display=".", show=False, tooltip="Show the next cam"),
