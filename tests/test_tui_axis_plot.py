@@ -23,6 +23,8 @@ from workbench.tui.widgets.axis_chart import (BOUNDARY, CURVE, FRAME, LIMIT, LIM
                                               Scale, draw)
 from workbench.tui.widgets.axis_plots import AxisPlot
 
+from tui_pilot import settle
+
 LID = "lid-lift"
 OTHER = "tray-pusher"
 THETA = np.arange(3601) * 0.1  # master angle, deg
@@ -105,12 +107,6 @@ def test_a_small_plot_shows_only_its_title():
 
 
 # --- in the workbench ----------------------------------------------------------------------
-
-
-async def settle(pilot) -> None:
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 def plot(app, quantity: str) -> AxisPlot:

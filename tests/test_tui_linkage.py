@@ -52,6 +52,8 @@ from workbench.tui.widgets.linkage_layout import arrange
 from workbench.tui.widgets.linkage_plots import LinkagePlot
 from workbench.tui.widgets.linkage_report import LinkageReport
 
+from tui_pilot import settle
+
 SIZE = (100, 30)
 SHOWN_REL = 6e-4  # 4 significant digits on screen: at most half a unit in the 4th digit
 LINKAGE_PRESETS = ("slider-crank", "crank-rocker", "six-bar-press", "servo-carriage")
@@ -61,15 +63,6 @@ A_SV, B_SV, C_SV, HOME_SV = 60.0, 200.0, 15.0, 160.0  # presets/servo-carriage.t
 
 
 # --- helpers ------------------------------------------------------------------------------
-
-
-async def settle(pilot) -> None:
-    """Let keys reach the view and the worker's study reach the widgets."""
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 async def open_view(pilot) -> None:

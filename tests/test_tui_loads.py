@@ -32,17 +32,11 @@ from workbench.tui.widgets import loads_data
 from workbench.tui.widgets.cam_plots import AnglePlot, Curve, PlotSpec
 from workbench.tui.widgets.loads_data import Figure, LoadsItem
 
+from tui_pilot import settle
+
 SIZE = (100, 30)
 STAMP = dict(mass=2.4, spring_mass=0.4, rate=8.0, preload=180.0, friction=15.0, margin=50.0)  # presets/cam-press
 FEED = dict(mass=0.6, rate=2.0, preload=40.0, margin=20.0, arm=0.070)
-
-
-async def settle(pilot) -> None:
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 def view(app) -> LoadsView:

@@ -24,14 +24,9 @@ from workbench.tui.views.loads import FigureTable, LoadsView
 from workbench.tui.widgets.cam_plots import AnglePlot
 from workbench.tui.widgets.loads_linkage import LOADS_EXAMPLE
 
+from tui_pilot import settle
+
 SIZE = (100, 30)
-
-
-async def settle(pilot) -> None:
-    for _ in range(2):
-        await pilot.pause()
-        await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 def figures(app) -> dict:

@@ -16,6 +16,8 @@ from workbench.projectfile import load_project
 from workbench.tui.messages import ProjectEdited
 from workbench.tui.widgets.segment_table import SegmentTable
 
+from tui_pilot import settle
+
 LID = "lid-lift"
 
 
@@ -27,12 +29,6 @@ def painted(table: SegmentTable) -> list:
     """The table's lines as the screen gets them (header first)."""
     table._styles_cache.clear()
     return table.render_lines(Region(0, 0, table.size.width, table.size.height))
-
-
-async def settle(pilot) -> None:
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 async def test_an_edit_repaints_the_changed_cells():

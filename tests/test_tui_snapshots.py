@@ -18,6 +18,9 @@ from workbench.projectfile import load_project
 from workbench.tui.views.axes import AxesView
 from workbench.tui.widgets.segment_table import SegmentTable
 
+from tui_pilot import settle
+
+
 @pytest.fixture(autouse=True)
 def _plain(plain_environment):
     """Every test here is a snapshot: none of the rendering variables set (conftest.py)."""
@@ -28,9 +31,8 @@ def workbench(preset: str = "tray-lidder") -> Workbench:
 
 
 async def settled(pilot) -> None:
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
+    """Settled, and no cursor blinking in a field (a blink would differ between runs)."""
+    await settle(pilot)
     for field in pilot.app.screen.query(Input):
         field.cursor_blink = False
     await pilot.pause()

@@ -28,6 +28,8 @@ from workbench.tui.widgets.cell_editor import CellEditor, CellField, EditNote, L
 from workbench.tui.widgets.peaks_panel import PeaksPanel
 from workbench.tui.widgets.segment_table import SegmentTable
 
+from tui_pilot import settle
+
 LID = "lid-lift"
 SIZE = (100, 30)
 
@@ -43,13 +45,6 @@ def project_file(tmp_path):
     path = tmp_path / "lidder.toml"
     shutil.copy(preset_path("tray-lidder"), path)
     return path
-
-
-async def settle(pilot) -> None:
-    """Let edits reach the worker and its results reach the widgets."""
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 async def open_cell(pilot, row: int, column: int) -> CellEditor:
