@@ -353,6 +353,9 @@ def law_table() -> list[tuple[str, tuple[float, float, float] | None]]:
     return out
 
 
-# The edits that reach into cams and linkages (a cam's sizes, an axis renamed with what follows it)
-# live in `editing_parts`, which imports this module: imported last, so either may be imported first.
-from .editing_parts import axis_users, cam_sizes, rename_axis, set_cam_size  # noqa: E402,F401
+# The edits that reach into cams and linkages (a cam's sizes, turning and limits, an axis renamed with
+# what follows it) live in `editing_parts`, which imports this module: imported last, so either may be
+# imported first.
+from .editing_parts import (  # noqa: E402,F401
+    axis_users, cam_sizes, rename_axis, reversed_turning, set_cam_limits, set_cam_size, set_cam_turning,
+)

@@ -1,10 +1,12 @@
-"""Edits that reach past the axes into the project's parts: a cam's sizes, and an axis's
-name, which the cams and linkage drivers that follow the axis carry too.
+"""Edits that reach past the axes into the project's parts: a cam's sizes, turning and
+limits, and an axis's name, which the cams and linkage drivers that follow the axis carry too.
 
 Like every edit of `workbench.editing` (which re-exports these), each takes a
 project and returns a new one, or raises `EditError` with one reason a user
-can read; the project passed in is never changed.  Sizes are in mm, as the
-file and the screens give them.
+can read; the project passed in is never changed.  Sizes are in mm and the
+pressure-angle limit in deg, as the file and the screens give them.  An
+edited cam is read back as the file would read it, so what is accepted
+loads again after a save.
 """
 
 from __future__ import annotations
@@ -13,10 +15,10 @@ import math
 from dataclasses import MISSING, fields, replace
 from typing import Callable
 
-from solver.cam import FOLLOWERS, CamGeometryError
+from solver.cam import FOLLOWERS, CamGeometryError, RollerFollower
 
 from .camfile import PART_KEY as CAM_KEY
-from .camfile import CamSpec, cam_specs, dump_cams, follower_of, parse_cams
+from .camfile import TURNING, CamLimitsSpec, CamSpec, cam_specs, dump_cams, follower_of, parse_cams
 from .linkagefile import PART_KEY as LINKAGE_KEY
 from .linkagefile import LinkageSpec, linkage_specs
 from .projectfile import Project
@@ -78,10 +80,16 @@ def set_cam_size(project: Project, cam_name: str, key: str, value: float | None)
     if edited.limits.curvature_ratio is not None and edited.size("roller_radius") == 0:
         raise EditError("roller_radius = 0 mm makes a knife edge, which has no curvature ratio: "
                         "take curvature_ratio out of [cam.limits] first", key)
+    return _with_cam(project, index, edited, f"{key} = {_mm(value)}", key)
+
+
+def _with_cam(project: Project, index: int, edited: CamSpec, what: str, key: str) -> Project:
+    """The project with cam `index` replaced by `edited` as the file would read it back;
+    refused (naming `what` was typed into `key`) where the file would refuse it."""
     try:
         read_back = parse_cams(dump_cams([edited]), project, project.path)[0]
     except ProjectError as exc:
-        raise EditError(f"{key} = {_mm(value)}: the cam cannot be laid out: {exc.problem}", key) from None
+        raise EditError(f"{what}: the cam cannot be laid out: {exc.problem}", key) from None
     specs = cam_specs(project)
     specs[index] = read_back
     return replace(project, parts={**project.parts, CAM_KEY: specs})
@@ -89,6 +97,75 @@ def set_cam_size(project: Project, cam_name: str, key: str, value: float | None)
 
 def _mm(value: float | None) -> str:
     return "(the default)" if value is None else f"{value:g} mm"
+
+
+# --- cam turning and limits ------------------------------------------------------
+
+MAX_PRESSURE_ANGLE = 90.0  # deg: at 90° the follower is pushed square to its travel and cannot move
+
+
+def reversed_turning(turning: str) -> str:
+    """"ccw" for "cw" and the other way round."""
+    return "ccw" if turning == "cw" else "cw"
+
+
+def set_cam_turning(project: Project, cam_name: str, turning: str) -> Project:
+    """The cam turning "cw" or "ccw" (seen with the follower on top); the same turning: the same project.
+
+    A translating follower's offset keeps to the side that eases the rise
+    (`solver.cam.translating`), so its cam comes out mirrored with the same
+    pressure angles; an oscillating follower's pivot stays put, so its
+    pressure angles change."""
+    index, spec = _cam(project, cam_name)
+    if turning not in TURNING:
+        raise EditError(f"turning: must be {' or '.join(repr(t) for t in TURNING)}, got {turning!r}", "turning")
+    if turning == spec.turning:
+        return project
+    return _with_cam(project, index, replace(spec, turning=turning), f"turning = {turning}", "turning")
+
+
+LIMIT_UNITS = {"pressure_angle": "deg", "curvature_ratio": "×", "min_radius": "mm"}
+"""The unit each `[cam.limits]` key is given in (the file's and the screens')."""
+
+
+def _limit_value(key: str, value: float | None) -> float | None:
+    """A limit as the file keeps it (float), or None; refused where it is not finite or not above 0."""
+    if value is None:
+        return None
+    unit = LIMIT_UNITS[key]
+    shown = f"{value:g}" + ("" if unit == "×" else f" {unit}")
+    if not math.isfinite(value):
+        raise EditError(f"{key}: must be finite, got {value!r}", key)
+    if value <= 0:
+        raise EditError(f"{key}: must be above 0, got {shown} (blank: leave the limit out)", key)
+    if key == "pressure_angle" and value >= MAX_PRESSURE_ANGLE:
+        raise EditError(f"{key}: must be below {MAX_PRESSURE_ANGLE:g} deg, got {shown}: at "
+                        f"{MAX_PRESSURE_ANGLE:g}° the cam pushes square across the follower's travel", key)
+    return float(value)
+
+
+def set_cam_limits(project: Project, cam_name: str, limits: CamLimitsSpec) -> Project:
+    """The cam's `[cam.limits]`: pressure_angle deg, curvature_ratio, min_radius mm; None leaves a
+    limit out of the file (common practice then, or no min_radius).  The same limits: the same project.
+
+    Refused with the first reason, in the file's key order: a value not above
+    0 or not finite, a pressure angle of 90° or more, a curvature ratio on a
+    follower without a roller (a flat face, a knife edge)."""
+    index, spec = _cam(project, cam_name)
+    values = {f.name: _limit_value(f.name, getattr(limits, f.name)) for f in fields(CamLimitsSpec)}
+    words = spec.follower.replace("-", " ")
+    if values["curvature_ratio"] is not None:
+        if not issubclass(FOLLOWERS[spec.follower], RollerFollower):
+            raise EditError(f"curvature_ratio: applies to roller followers only, not a {words} follower "
+                            "(leave it blank)", "curvature_ratio")
+        if spec.size("roller_radius") == 0:
+            raise EditError("curvature_ratio: a knife edge (roller_radius = 0 mm) has no curvature ratio "
+                            "(leave it blank)", "curvature_ratio")
+    edited = replace(spec, limits=CamLimitsSpec(**values))
+    if edited == spec:
+        return project
+    given = ", ".join(f"{k} {v:g}" for k, v in values.items() if v is not None) or "no limits"
+    return _with_cam(project, index, edited, given, "limits")
 
 
 # --- axis names ----------------------------------------------------------------
