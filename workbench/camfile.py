@@ -41,6 +41,7 @@ from dataclasses import MISSING, dataclass, fields
 from typing import TYPE_CHECKING
 
 from solver.cam import (
+    DEFAULT_POINTS,
     FOLLOWERS,
     Cam,
     CamAnalysis,
@@ -55,7 +56,6 @@ from solver.cam import (
     common_practice_limits,
     motion_from_program,
 )
-from solver.cam.analysis import DEFAULT_POINTS
 from solver.loads import FollowerLoad
 
 from .tomlcheck import ProjectError, Table

@@ -20,8 +20,7 @@ import numpy as np
 from motionlaws import Limits
 from motionlaws.peaks import LimitCheck, Peak
 from motionlaws.peaksearch import TIE
-from solver.kinematics import INSTANTS, SOLVED, TransmissionAngle, output_joins
-from solver.kinematics.peaks import refined_max
+from solver.kinematics import INSTANTS, SOLVED, TransmissionAngle, output_joins, refined_max
 
 from .linkagefile import LinkageSpec
 from .linkagesolve import FULL_TURN, LinkageSolution, solve_linkage

@@ -16,7 +16,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from solver.cam.analysis import DEFAULT_POINTS, MIN_POINTS
+from solver.cam import DEFAULT_POINTS, MIN_POINTS
 
 from .camexport import FORMATS, profile_csv, profile_dxf, profile_svg, uncuttable, verdict_lines
 from .camfile import cam_specs, find_cam, study_cam

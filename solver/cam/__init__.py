@@ -3,7 +3,7 @@
 SI units and radians throughout; see README.md in this folder for the API.
 """
 
-from .analysis import CamAnalysis, CurveRadii, FaceUse, analyse
+from .analysis import DEFAULT_POINTS, MIN_POINTS, CamAnalysis, CurveRadii, FaceUse, analyse
 from .errors import CamGeometryError
 from .extremes import Extreme, Interval
 from .followers import FlatFollower, Follower, RollerFollower
@@ -30,7 +30,7 @@ FOLLOWERS = {cls.type_id: cls for cls in (TranslatingRoller, TranslatingFlat, Os
 """Follower classes by their type id ("translating-roller", …), for a project file's follower key."""
 
 __all__ = [
-    "CURVATURE_RATIO", "CURVATURE_RATIO_RANGE", "FOLLOWERS", "OSCILLATING_PRESSURE_ANGLE",
+    "CURVATURE_RATIO", "CURVATURE_RATIO_RANGE", "DEFAULT_POINTS", "FOLLOWERS", "MIN_POINTS", "OSCILLATING_PRESSURE_ANGLE",
     "OSCILLATING_PRESSURE_ANGLE_RANGE", "TRANSLATING_PRESSURE_ANGLE",
     "Cam", "CamAnalysis", "CamCheck", "CamGeometryError", "CamLimits", "CamMotion", "CamPoints",
     "CamVerdict", "CurveRadii", "Extreme", "FaceUse", "FlatFollower", "Follower", "Interval",

@@ -17,8 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from solver.cam import CamGeometryError, RollerFollower
-from solver.cam.analysis import DEFAULT_POINTS
+from solver.cam import DEFAULT_POINTS, CamGeometryError, RollerFollower
 
 from ...camfile import CamSpec, CamStudy, cam_specs, study_cam
 from ...projectfile import Project

@@ -15,9 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from solver.kinematics import GROUND
-from solver.kinematics.base import LENGTH
-from solver.kinematics.newton import assemble
-from solver.kinematics.system import System
+from solver.kinematics import open_gaps
 
 from ...linkagefile import LinkageSpec, split_ref
 
@@ -133,16 +131,5 @@ def open_joints(mechanism) -> tuple[np.ndarray | None, tuple[tuple[str, float | 
     """The configuration nearest to assembled at master 0 (least squares from the file's placing) and
     the joints and drivers that stay open there, widest gap first: (name, gap in mm, or None for a
     gap that is an angle)."""
-    system = System(mechanism)
-    q, _ = assemble(system, system.initial_guess(), 0.0)
-    res = system.residual(q[:, None], system.drive(np.array([0.0])))[:, 0]
-    scaled = res * system.row_scale
-    gaps: dict[str, list] = {}
-    for name, unit, r, sr in zip(system.row_names, system.row_units, res, scaled):
-        entry = gaps.setdefault(name, [0.0, 0.0, True])
-        entry[0] += sr * sr
-        entry[1] += (r * MM) ** 2 if unit == LENGTH else 0.0
-        entry[2] = entry[2] and unit == LENGTH
-    found = sorted(((n, math.sqrt(g[0]), math.sqrt(g[1]) if g[2] else None) for n, g in gaps.items()),
-                   key=lambda item: -item[1])
-    return q, tuple((n, gap) for n, size, gap in found if size > OPEN)
+    q, gaps = open_gaps(mechanism, 0.0)
+    return q, tuple((g.name, None if g.length is None else g.length * MM) for g in gaps if g.size > OPEN)

@@ -15,8 +15,7 @@ from rich.table import Table
 from rich.text import Text
 from textual.widgets import Static
 
-from solver.kinematics import DEAD_POINT, GROUND, NOT_ASSEMBLED, NOT_DRIVEN, SOLVED
-from solver.kinematics.result import REASONS
+from solver.kinematics import DEAD_POINT, GROUND, NOT_ASSEMBLED, NOT_DRIVEN, REASONS, SOLVED
 
 from ...axisreport import fmt
 from ...linkagefile import describe, split_ref
