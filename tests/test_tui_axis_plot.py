@@ -23,7 +23,7 @@ from workbench.tui.widgets.axis_chart import (BOUNDARY, CURVE, FRAME, LIMIT, LIM
                                               Scale, draw)
 from workbench.tui.widgets.axis_plots import AxisPlot
 
-from tui_pilot import settle
+from tests.tui_pilot import settle
 
 LID = "lid-lift"
 OTHER = "tray-pusher"

@@ -52,7 +52,7 @@ from workbench.tui.widgets.linkage_layout import arrange
 from workbench.tui.widgets.linkage_plots import LinkagePlot
 from workbench.tui.widgets.linkage_report import LinkageReport
 
-from tui_pilot import settle
+from tests.tui_pilot import settle
 
 SIZE = (100, 30)
 SHOWN_REL = 6e-4  # 4 significant digits on screen: at most half a unit in the 4th digit

@@ -32,7 +32,7 @@ from workbench.tui.widgets import loads_data
 from workbench.tui.widgets.cam_plots import AnglePlot, Curve, PlotSpec
 from workbench.tui.widgets.loads_data import Figure, LoadsItem
 
-from tui_pilot import settle
+from tests.tui_pilot import settle
 
 SIZE = (100, 30)
 STAMP = dict(mass=2.4, spring_mass=0.4, rate=8.0, preload=180.0, friction=15.0, margin=50.0)  # presets/cam-press

@@ -24,7 +24,7 @@ from workbench.tui.views.loads import FigureTable, LoadsView
 from workbench.tui.widgets.cam_plots import AnglePlot
 from workbench.tui.widgets.loads_linkage import LOADS_EXAMPLE
 
-from tui_pilot import settle
+from tests.tui_pilot import settle
 
 SIZE = (100, 30)
 

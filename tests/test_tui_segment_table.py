@@ -16,7 +16,7 @@ from workbench.projectfile import load_project
 from workbench.tui.messages import ProjectEdited
 from workbench.tui.widgets.segment_table import SegmentTable
 
-from tui_pilot import settle
+from tests.tui_pilot import settle
 
 LID = "lid-lift"
 

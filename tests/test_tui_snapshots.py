@@ -18,7 +18,7 @@ from workbench.projectfile import load_project
 from workbench.tui.views.axes import AxesView
 from workbench.tui.widgets.segment_table import SegmentTable
 
-from tui_pilot import settle
+from tests.tui_pilot import settle
 
 
 @pytest.fixture(autouse=True)

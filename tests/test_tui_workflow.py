@@ -28,7 +28,7 @@ from workbench.tui.widgets.cell_editor import CellEditor, CellField, EditNote, L
 from workbench.tui.widgets.peaks_panel import PeaksPanel
 from workbench.tui.widgets.segment_table import SegmentTable
 
-from tui_pilot import settle
+from tests.tui_pilot import settle
 
 LID = "lid-lift"
 SIZE = (100, 30)
