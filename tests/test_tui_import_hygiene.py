@@ -7,9 +7,11 @@ can hide a stray `import textual` (common practice, after import-linter's
 
 from __future__ import annotations
 
+import ast
 import json
 import subprocess
 import sys
+from pathlib import Path
 
 import pytest
 
@@ -38,3 +40,28 @@ def test_ui_free_workbench_parts_load_no_ui(module):
 
 def test_the_check_would_see_textual():
     assert "textual" in loaded_after("import workbench.app")
+
+
+def solver_imports(root: Path) -> list[tuple[str, str]]:
+    """(file, module) for every `solver…` module the files under `root` import."""
+    found = []
+    for path in sorted(root.rglob("*.py")):
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            if isinstance(node, ast.ImportFrom) and node.module and node.level == 0:
+                names = [node.module]
+            elif isinstance(node, ast.Import):
+                names = [alias.name for alias in node.names]
+            else:
+                continue
+            found += [(str(path), n) for n in names if n == "solver" or n.startswith("solver.")]
+    return found
+
+
+def test_the_workbench_uses_the_solvers_public_packages_only():
+    """The workbench reaches the solver through `solver.cam`, `solver.kinematics` and
+    `solver.loads` (their `__init__` is the API), never a module inside them."""
+    root = Path(__file__).resolve().parents[1] / "workbench"
+    found = solver_imports(root)
+    assert found  # the check itself sees imports
+    deep = [(f, m) for f, m in found if m.count(".") > 1]
+    assert not deep, f"solver internals imported: {deep}"
