@@ -5,7 +5,8 @@ view, an undo, an open) is studied again in a worker (`cam_data.study_cams`),
 so the view always shows the edited project, not the file on disk.  Keys:
 `,` `.` pick the cam, `←` `→` turn it (shift: 1°), `home` back to 0°, `w`
 to the worst spots in turn, `e` export the profile with the writer of
-`camwright profile`, `s` change the follower's sizes (`cam_sizes`).
+`camwright profile`, `s` change the follower's sizes (`cam_sizes`), `t`
+reverse the turning and `L` change the limits (`cam_edits`).
 """
 
 from __future__ import annotations
@@ -27,16 +28,17 @@ from ...projectfile import Project
 from ..format import OK_STYLE, OVER_STYLE, degrees
 from ..messages import Status
 from ..widgets.cam_data import CamEntry, readout, study_cams
-from ..widgets.cam_drawing import CELL_ASPECT, CamDrawing, legend, turning_words
+from ..widgets.cam_drawing import CELL_ASPECT, CamDrawing, legend
 from ..widgets.cam_empty import no_cam_text
 from ..widgets.cam_export import start_export
 from ..widgets.cam_plots import AnglePlot, pressure_angle_plot, radius_plot
 from ..widgets.cam_verdicts import CamVerdicts, angle, show_text
 from . import register_view
+from .cam_edits import reverse_turning, start_limits_edit, turning_text
 from .cam_sizes import sizes_text, start_size_edit
 from .base import WorkbenchView
 
-CAM_ACTIONS = {"step", "go", "worst", "export", "cycle_cam", "sizes"}  # keys that need a cam
+CAM_ACTIONS = {"step", "go", "worst", "export", "cycle_cam", "sizes", "turning", "limits"}  # keys that need a cam
 COARSE_STEP = 5.0  # deg per ← →
 FINE_STEP = 1.0  # deg per shift+← →
 PLOT_ROWS = (7, 13)  # least and most rows for the plots; a third of the view between them
@@ -46,6 +48,7 @@ SIDE_WIDTH = 60  # columns the checks table needs beside the drawing
 WIDE_SIDE_WIDTH = 78  # columns it needs with the share-of-limit bars
 WIDE_DRAWING = 40  # the drawing gives way to the bars only while it keeps this many columns
 STRAIGHT = 1e6  # mm: a radius beyond this is shown as straight
+BAR_PRIORITY = (1, 2, 0, 3)  # the bar's pieces (follower, axis, turning, base circle) by the room they get
 LIFT_AT_REST = 1e-9  # |ds/dθ| below this (axis unit per rad) counts as at rest
 
 
@@ -88,6 +91,10 @@ class CamView(WorkbenchView):
                 "then any undercut, cusp or corner, in turn"),
         Binding("s", "sizes", "Sizes", priority=True, tooltip="Change a size of the follower: prime or base circle, roller, "
                 "offset, face, arm (refused with the reason where the cam cannot take it)", id="cam-sizes"),
+        Binding("t", "turning", "Reverse", show=False, tooltip="Reverse the cam's turning (cw ↔ ccw); a translating "
+                "follower's offset keeps to the side that eases the rise, so its cam is mirrored", id="cam-turning"),
+        Binding("L", "limits", "Limits", key_display="L", show=False, priority=True, tooltip="Change the cam's limits: "
+                "pressure angle, curvature ratio, least profile radius (blank: common practice)", id="cam-limits"),
         Binding("e", "export", "Export", priority=True, tooltip="Write the profile as CSV, DXF or SVG (the writer of "
                 "camwright profile)", id="cam-export"),
         Binding("comma", "cycle_cam(-1)", "Prev cam", key_display=",", show=False, tooltip="Show the previous cam"),
@@ -270,17 +277,18 @@ class CamView(WorkbenchView):
                         style=OK_STYLE if entry.study.ok else OVER_STYLE)
         else:
             text.append("(computing…)", style="dim")
-        pieces = [f"{spec.follower.replace('-', ' ')} follower", f"axis {spec.axis}"]
+        pieces = [spec.follower.replace("-", " "), f"axis {spec.axis}", turning_text(spec) + " (t)"]
         if entry is not None and entry.study is not None:
-            pieces += [f"base circle {fmt(entry.study.cam.follower.base_radius * 1e3)} mm",
-                       turning_words(entry.study.cam.sigma)]
+            pieces += [f"base circle {fmt(entry.study.cam.follower.base_radius * 1e3)} mm"]
         room = self.size.width - 2 - len(text.plain)
-        for piece in pieces:  # as many as fit whole
-            if len(piece) + 3 > room:
-                break
+        shown = set()
+        for i in sorted(range(len(pieces)), key=BAR_PRIORITY.index):  # each one that fits whole
+            if len(pieces[i]) + 3 <= room:
+                shown.add(i)
+                room -= len(pieces[i]) + 3
+        for i in sorted(shown):  # in their own order
             text.append(" · ", style="dim")
-            text.append(piece, style="dim")
-            room -= len(piece) + 3
+            text.append(pieces[i], style="dim")
         bar.update(text, layout=False)
 
     def focus_first(self) -> None:
@@ -356,6 +364,14 @@ class CamView(WorkbenchView):
     def action_sizes(self) -> None:
         if self.project is not None and self.cam_name is not None:
             start_size_edit(self, self.project, self.cam_name)
+
+    def action_turning(self) -> None:
+        if self.project is not None and self.cam_name is not None:
+            reverse_turning(self, self.project, self.cam_name)
+
+    def action_limits(self) -> None:
+        if self.project is not None and self.cam_name is not None:
+            start_limits_edit(self, self.project, self.cam_name)
 
 
 def _radius(mm: float) -> str:

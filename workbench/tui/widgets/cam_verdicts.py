@@ -25,6 +25,7 @@ PRACTICE_MARK = "*"  # beside a limit that is common practice, not from the file
 NOTE = f"{PRACTICE_MARK} common practice (rule of thumb): no limit in the file"
 COLUMN_GAP = (0, 1, 0, 0)  # one space between columns: the table fits beside the drawing at 80 columns
 WIDE = 76  # from this width on, the table shows the share of each limit as a bar
+LIMIT_HEADER = "limit (L)"  # with the Cam view's key that changes the limits (not in the footer at 80 columns)
 LABELS = {
     "pressure_angle": "pressure angle",
     "undercut": "undercut",
@@ -160,7 +161,7 @@ class CamVerdicts(Static):
             return
         self.rows, self.radii = check_rows(entry), radius_rows(entry)
         table = Table(box=None, padding=COLUMN_GAP, show_edge=False, expand=False, header_style="bold")
-        for name, justify in (("check", "left"), ("value", "right"), ("at", "right"), ("limit", "left")):
+        for name, justify in (("check", "left"), ("value", "right"), ("at", "right"), (LIMIT_HEADER, "left")):
             table.add_column(name, justify=justify, no_wrap=True)
         if self._wide:
             table.add_column("share of limit", no_wrap=True)
