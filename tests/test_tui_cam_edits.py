@@ -275,3 +275,14 @@ async def test_turning_and_limits_save_in_place_with_the_comments_kept(press_fil
         assert find_cam(reopened, name) == find_cam(edited, name)
     assert find_cam(reopened, "stamp-cam").limits == CamLimitsSpec(28.0, 2.5, None)
     assert find_cam(reopened, "feed-cam").limits == CamLimitsSpec(40.0, None, None)
+
+
+async def test_keys_typed_right_after_L_reach_the_dialog(press_file):
+    app = Workbench(load_project(press_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await cam_view(pilot)
+        await pilot.press("L", "2", "8", "enter")  # a quick hand: the value and Enter behind the key
+        await settle(pilot)
+        assert find_cam(app.project, "stamp-cam").limits == CamLimitsSpec(pressure_angle=28.0)
+        assert app.status_text == "cam stamp-cam: limits pressure_angle 30° → 28°"
+        assert isinstance(app.current_view, CamView)  # "2" did not switch to the Timing view
