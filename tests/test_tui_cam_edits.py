@@ -221,6 +221,7 @@ async def test_limit_against_the_textbook_peak_and_the_follower_kept_in_place(pr
         assert rows(app)["pressure angle"]["verdict"] == "✓ within" and "✓ all checks pass" in bar(app)
         await pilot.press("t")  # reversed alone: the offset keeps to the rise's side, a mirror image
         await settle(pilot)
+        assert app.status_text == "cam stamp-cam: turning cw → ccw (mirrored: offset on the rise's side)"
         assert rows(app)["pressure angle"]["value"] == f"{fmt(rising)}°"
         await pilot.press("s")
         await pilot.pause()

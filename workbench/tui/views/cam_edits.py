@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import math
 
-from solver.cam import CamGeometryError, common_practice_limits
+from solver.cam import FOLLOWERS, CamGeometryError, common_practice_limits
 
 from ... import editing
 from ...axisreport import fmt
@@ -32,13 +32,15 @@ LABELS = {"pressure_angle": "pressure_angle [deg]", "curvature_ratio": "curvatur
 CHECK_WORDS = {"pressure_angle": "pressure angle", "curvature_ratio": "curvature ratio",
                "min_radius": "profile radius"}  # the checks the limits set, as the verdict table names them
 TURNING_WORDS = {"cw": "cw ↻", "ccw": "ccw ↺"}
+MIRRORED = " (mirrored: offset on the rise's side)"  # a translating follower (solver.cam.translating)
 
 
 # --- turning ---------------------------------------------------------------------------
 
 
 def reverse_turning(view, project: Project, cam_name: str) -> None:
-    """Reverse the cam's turning as one edit; the note names it ("cam stamp-cam: turning cw → ccw")."""
+    """Reverse the cam's turning as one edit; the note names it ("cam feed-cam: turning cw → ccw"), and
+    says why a translating follower's cam comes out mirrored with the same pressure angles."""
     spec = find_cam(project, cam_name)
     new = editing.reversed_turning(spec.turning)
     try:
@@ -47,7 +49,8 @@ def reverse_turning(view, project: Project, cam_name: str) -> None:
         view.post_message(Status(f"refused — cam {cam_name}: {exc.message}", error=True))
         view.app.bell()
         return
-    view.post_message(ProjectEdited(edited, f"cam {cam_name}: turning {spec.turning} → {new}"))
+    mirrored = MIRRORED if FOLLOWERS[spec.follower].motion_kind == "linear" else ""
+    view.post_message(ProjectEdited(edited, f"cam {cam_name}: turning {spec.turning} → {new}{mirrored}"))
 
 
 # --- limits ----------------------------------------------------------------------------
