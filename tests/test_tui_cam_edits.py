@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import difflib
 import shutil
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -287,3 +288,25 @@ async def test_keys_typed_right_after_L_reach_the_dialog(press_file):
         assert find_cam(app.project, "stamp-cam").limits == CamLimitsSpec(pressure_angle=28.0)
         assert app.status_text == "cam stamp-cam: limits pressure_angle 30° → 28°"
         assert isinstance(app.current_view, CamView)  # "2" did not switch to the Timing view
+
+
+async def test_a_cam_that_cannot_be_laid_out_refuses_its_edits_with_the_reason(press_file):
+    project = load_project(press_file)
+    cams = project.parts["cam"]
+    broken = replace(project, parts={**project.parts, "cam": [replace(cams[0], axis="gone")] + cams[1:]})
+    app = Workbench(broken)
+    async with app.run_test(size=SIZE) as pilot:
+        await cam_view(pilot)
+        await pilot.press("t")
+        await settle(pilot)
+        assert app.project is broken and not app.history.can_undo
+        assert "refused — cam stamp-cam: turning = ccw: the cam cannot be laid out" in app.status_text
+        assert "no axis 'gone'" in app.status_text
+        dialog = await open_limits(pilot)
+        assert dialog.error is None  # the limits as they are: no edit to refuse
+        await type_limits(pilot, pressure_angle="25")
+        assert dialog.error.startswith("pressure_angle 25: the cam cannot be laid out")
+        assert "no axis 'gone'" in feedback(dialog)
+        await pilot.press("enter")
+        await pilot.pause()
+        assert app.screen is dialog and app.project is broken

@@ -27,6 +27,7 @@ from .cam_sizes import typed_form
 
 LIMIT_KEYS = ("pressure_angle", "curvature_ratio", "min_radius")  # the file's keys, in its order
 TYPED_UNITS = {"pressure_angle": ("deg", "°"), "curvature_ratio": ("×", "x"), "min_radius": ("mm",)}
+SHOWN_UNITS = {"pressure_angle": "°", "curvature_ratio": "×", "min_radius": " mm"}
 LABELS = {"pressure_angle": "pressure_angle [deg]", "curvature_ratio": "curvature_ratio [×]",
           "min_radius": "min_radius [mm]"}
 CHECK_WORDS = {"pressure_angle": "pressure angle", "curvature_ratio": "curvature ratio",
@@ -56,16 +57,12 @@ def reverse_turning(view, project: Project, cam_name: str) -> None:
 # --- limits ----------------------------------------------------------------------------
 
 
-def _unit(key: str) -> str:
-    return {"pressure_angle": "°", "curvature_ratio": "×", "min_radius": " mm"}[key]
-
-
 def limit_words(key: str, value: float | None) -> str:
     """A limit as the file gives it: "30°", "2×", "10 mm"; where it is left out "default" (common
     practice) or, for min_radius, "none"."""
     if value is None:
         return "none" if key == "min_radius" else "default"
-    return f"{value:g}{_unit(key)}"
+    return f"{value:g}{SHOWN_UNITS[key]}"
 
 
 def blank_means(spec: CamSpec) -> dict[str, str]:
