@@ -18,7 +18,7 @@ from solver.kinematics import ConstantSpeed, JointCoordinate, Mechanism, Revolut
 
 
 def short_chain(a: float, b: float, c: float, d: float) -> Mechanism:
-    """Crank a (O2–A) driven at 0 rad, coupler b, rocker c, ground d; b + c < d − a."""
+    """Crank a (O2–A) driven at the master angle, coupler b, rocker c, ground d; b + c < d − a."""
     m = Mechanism("too short")
     m.add_point("ground", "O2", (0.0, 0.0))
     m.add_point("ground", "O4", (d, 0.0))
@@ -45,7 +45,19 @@ def test_the_gaps_of_a_chain_too_short_add_up_to_the_missing_length(a, b, c, d):
     # every link lies on the line of centres: body angles 0 or π
     angles = np.asarray(q)[[2, 5, 8]]
     assert np.allclose(np.sin(angles), 0.0, atol=1e-6)
-    assert math.isfinite(missing) and missing > 0
+
+
+def test_the_drivers_hold_where_the_chain_cannot_close():
+    """With the crank driven to 90° (off the line of centres), the nearest configuration keeps the
+    crank there and leaves the chain open: the crank pin A sits at (0, a), so the missing length is
+    |O4 − A| − (b + c) = √(d² + a²) − (b + c) (Pythagoras), shared along the straight chain."""
+    a, b, c, d = 0.05, 0.04, 0.06, 0.3
+    q, gaps = open_gaps(short_chain(a, b, c, d), math.pi / 2)
+    by_name = {g.name: g for g in gaps}
+    assert q[2] == pytest.approx(math.pi / 2, abs=1e-9)  # the crank's angle, as driven
+    assert by_name["motor"].size < 1e-9
+    joints = [by_name[n].length for n in ("O2", "A", "B", "O4")]
+    assert sum(joints) == pytest.approx(math.hypot(d, a) - (b + c), rel=1e-6)
 
 
 def test_the_nearest_configuration_is_a_least_squares_minimum():

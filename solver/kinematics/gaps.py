@@ -8,7 +8,8 @@ size, angles in rad) and, for a joint whose equations are lengths, the gap
 in m.  A chain too short to close lies straight, its gaps adding up to the
 missing length.
 
-The nearest configuration is the least-squares one: Gauss–Newton from the
+The nearest configuration is the least-squares one with the drivers held:
+Gauss–Newton from the
 model's placing (`newton.assemble`, as the cycle starts), then, when that
 does not close the linkage, scipy's trust-region least squares on the
 scaled equations from there.  Gauss–Newton alone aims every step at a zero
@@ -28,6 +29,8 @@ from .base import LENGTH
 from .newton import assemble
 from .system import System
 
+DRIVER_WEIGHT = 1e6  # a driver's equation against a joint's in the least squares: a driver holds (to ~1e-12 rad)
+
 
 @dataclass(frozen=True)
 class Gap:
@@ -46,7 +49,7 @@ def open_gaps(mechanism, theta: float = 0.0) -> tuple[np.ndarray, tuple[Gap, ...
     q, closed = assemble(system, system.initial_guess(), theta)
     drive = system.drive(np.array([theta]))
     if not closed:
-        q = _least_squares(system, q, drive)
+        q = _least_squares(system, q, drive, set(mechanism.drivers))
     res = system.residual(q[:, None], drive)[:, 0]
     scaled = res * system.row_scale
     sums: dict[str, list] = {}
@@ -60,15 +63,17 @@ def open_gaps(mechanism, theta: float = 0.0) -> tuple[np.ndarray, tuple[Gap, ...
     return q, tuple(sorted(gaps, key=lambda g: -g.size))
 
 
-def _least_squares(system: System, q: np.ndarray, drive: np.ndarray) -> np.ndarray:
-    """The local minimum of the sum of squared scaled equations, from `q`."""
+def _least_squares(system: System, q: np.ndarray, drive: np.ndarray, drivers: set[str]) -> np.ndarray:
+    """The local minimum of the sum of squared scaled equations, from `q`, the drivers' equations
+    weighted `DRIVER_WEIGHT` times: the linkage is shown where its drivers put it."""
+    weight = system.row_scale * np.where([n in drivers for n in system.row_names], DRIVER_WEIGHT, 1.0)
 
     def scaled(x):
-        return system.residual(x[:, None], drive)[:, 0] * system.row_scale
+        return system.residual(x[:, None], drive)[:, 0] * weight
 
     def jacobian(x):
         _, jac = system.residual_jacobian(x[:, None], drive)
-        return jac.dense()[:, :, 0] * system.row_scale[:, None]
+        return jac.dense()[:, :, 0] * weight[:, None]
 
     found = least_squares(scaled, q, jac=jacobian, method="trf", x_scale=system.col_scale,
                           xtol=1e-14, ftol=1e-14, gtol=1e-14)
