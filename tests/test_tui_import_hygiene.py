@@ -65,3 +65,19 @@ def test_the_workbench_uses_the_solvers_public_packages_only():
     assert found  # the check itself sees imports
     deep = [(f, m) for f, m in found if m.count(".") > 1]
     assert not deep, f"solver internals imported: {deep}"
+
+
+def test_the_workbench_imports_only_names_the_solver_packages_export():
+    """`from solver.kinematics import newton` would reach inside too: every name the workbench
+    takes from a solver package is in that package's `__all__`."""
+    import importlib
+
+    root = Path(__file__).resolve().parents[1] / "workbench"
+    names = []
+    for path in sorted(root.rglob("*.py")):
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            if isinstance(node, ast.ImportFrom) and node.level == 0 and (node.module or "").startswith("solver"):
+                names += [(str(path), node.module, alias.name) for alias in node.names]
+    assert names  # the check sees imports
+    outside = [(f, m, n) for f, m, n in names if n not in getattr(importlib.import_module(m), "__all__", ())]
+    assert not outside, f"names not in the solver packages' __all__: {outside}"

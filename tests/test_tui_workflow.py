@@ -620,10 +620,10 @@ async def type_in_a_bunch(pilot, *keys: str) -> None:
     app's queue before the first is handled (the pilot's `press` waits between keys)."""
     from textual import events
 
+    controls = {"enter": "\r", "tab": "\t", "backspace": "\x7f", "escape": "\x1b"}
     for key in keys:
-        character = key if len(key) == 1 else ("\r" if key == "enter" else None)
-        pilot.app.post_message(events.Key(key, character))
-    await settle(pilot)
+        pilot.app.post_message(events.Key(key, key if len(key) == 1 else controls.get(key)))
+    await settle(pilot, rounds=4)
 
 
 @pytest.mark.parametrize("keys, check", [
@@ -639,6 +639,38 @@ async def test_keys_typed_right_after_a_dialog_key_go_to_the_dialog(keys, check)
         await type_in_a_bunch(pilot, *keys)
         assert app.screen is base and check(app.project)
         assert app.history.can_undo and not app.query_one(AxesView).holding
+
+
+def dialog_title(app) -> str:
+    return getattr(app.screen, "title_text", "")
+
+
+@pytest.mark.parametrize("keys, check", [
+    # a key before the dialog's acts first: the law list is for the segment the cursor went to
+    (("down", "l"), lambda app: dialog_title(app).startswith("Law of segment 2")),
+    # an edit before it lands, and the dialog opens on the edited project
+    (("d", "m"), lambda app: len(app.project.axis(LID).segments) == 2 and dialog_title(app) == "Machine speed"),
+    # a cell typed over and applied, then a dialog
+    (("right", "right", "enter", "1", "0", "0", "enter", "m"),
+     lambda app: app.project.axis(LID).segments[0].span == 100.0 and dialog_title(app) == "Machine speed"),
+    # Tab moves to the next field in its turn; Backspace acts before the digits after it
+    (("L", "9", "9", "9", "tab", "5", "0", "0", "0", "0", "enter"),
+     lambda app: (app.project.axis(LID).limits.velocity, app.project.axis(LID).limits.acceleration) == (999.0, 50000.0)),
+    (("L", "backspace", "8", "0", "0", "enter"), lambda app: app.project.axis(LID).limits.velocity == 800.0),
+    # keys after the Enter that closes a dialog act on the screen under it
+    (("m", "1", "1", "0", "enter", "l"),
+     lambda app: app.project.speed == 110.0 and dialog_title(app).startswith("Law of segment 1")),
+    # a second Enter or Escape that reaches a closing dialog does not close the workbench's screen
+    (("m", "1", "1", "0", "enter", "enter"),
+     lambda app: app.project.speed == 110.0 and dialog_title(app).startswith("Law of segment 1")),
+    (("m", "escape", "escape"), lambda app: not app.history.can_undo and dialog_title(app) == ""),
+])
+async def test_keys_in_a_bunch_act_in_the_order_typed(keys, check):
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await type_in_a_bunch(pilot, *keys)
+        assert app.is_running and check(app)
 
 
 async def test_a_dialog_closed_on_the_value_it_opened_with_changes_nothing():

@@ -30,6 +30,7 @@ from .tui.messages import ProjectEdited, ResultsReady, Status
 from .tui.screens.confirm import ChoiceDialog
 from .tui.screens.help import HelpScreen, binding_sections
 from .tui.screens.path_prompt import PathDialog
+from .tui.typed_keys import TypedAhead
 from .tui.views import VIEWS, WorkbenchView
 from .tui.widgets.key_footer import KeyFooter
 
@@ -50,7 +51,7 @@ class StatusLine(Static):
     """The last thing that happened, or why something was refused."""
 
 
-class Workbench(App):
+class Workbench(TypedAhead, App):
     """camwright's terminal workbench."""
 
     CSS_PATH = "app.tcss"

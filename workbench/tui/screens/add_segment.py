@@ -87,6 +87,6 @@ class AddSegmentDialog(ModelDialog):
         event.stop()
         result = self._check()
         if result is None:
-            self.app.bell()
+            self.stay()
         else:
             self.accept(result)

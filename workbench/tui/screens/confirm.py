@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from textual import events
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
@@ -34,6 +35,11 @@ class ChoiceDialog(ModalScreen[str | None]):
                 event.stop()
                 self.dismiss(word)
                 return
+
+    def take_key(self, key: events.Key) -> None:
+        """A key typed before the question was up (it went to the screen under it): an answer."""
+        if self.is_attached and self.app.screen is self:
+            self._forward_event(events.Key(key.key, key.character))
 
     def action_choose(self, word: str) -> None:
         self.dismiss(word or None)

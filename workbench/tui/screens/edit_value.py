@@ -100,4 +100,4 @@ class EditDialog(ModelDialog):
         if result is not None:
             self.accept(result)
         else:
-            self.app.bell()
+            self.stay()

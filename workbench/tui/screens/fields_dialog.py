@@ -1,4 +1,4 @@
-"""A dialog of a few typed fields tried together on the model: a cam's limits.
+"""A dialog of a few typed fields tried together on the model (an axis's or a cam's limits).
 
 Every keystroke tries all the fields at once (`attempt(texts)`, which returns
 the edited model or raises `EditError`); the reason a value is refused, or a
@@ -93,6 +93,6 @@ class FieldsDialog(ModelDialog):
         event.stop()
         result = self._check()
         if result is None:
-            self.app.bell()
+            self.stay()
         else:
             self.accept(result)

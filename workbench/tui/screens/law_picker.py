@@ -82,6 +82,6 @@ class LawPicker(ModelDialog):
         except EditError as exc:
             self.error = exc.message
             self.query_one("#feedback", Static).update(Text(f"✗ {exc.message}", style="bold red"))
-            self.app.bell()
+            self.stay()
             return
         self.accept(result)

@@ -46,7 +46,7 @@ class PathDialog(FieldDialog):
         except EditError as exc:
             self.error = exc.message
             self.query_one("#feedback", Static).update(Text(f"✗ {exc.message}", style="bold red"))
-            self.app.bell()
+            self.stay()
             return
         self.dismiss(result)
 

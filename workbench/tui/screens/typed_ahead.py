@@ -1,12 +1,17 @@
-"""Keys typed ahead of a dialog go to its first field instead of being lost.
+"""Keys typed ahead of a dialog reach its fields, in order, one at a time.
 
-A quick hand, or keys arriving in a bunch over SSH, can reach a dialog
-before any of its fields has the focus: the app then hands them to the
-screen itself, which has nothing to do with them.  A `FieldDialog` keeps
-them and gives them, in order, to the first field that takes the focus;
-the keys after them go there anyway.  (The key that opens the dialog must
-be a priority binding, so it runs as the app receives it, before the keys
-behind it are handed to the screen under the dialog.)
+A quick hand, or keys arriving in a bunch over SSH, can send keys meant for
+a dialog before it is up: they go to the screen under it (the Axes view and
+the app hand those on, `cell_editing.CellsInPlace.on_key`,
+`tui.typed_keys`) or to the dialog screen itself while none of its fields
+has the focus.  A `FieldDialog` queues such keys (`take_key`) and hands
+them to its focused field one at a time, each once the one before has been
+through the field and its parents up to the app (where the bindings of
+Backspace, arrows and Enter run): Tab moves to the next field in its turn,
+and after Enter the rest wait — for the dialog to stay (a refused value:
+`stay`, the keys go on into it) or to close (they go back to the app, for
+the screen underneath).  Keys that arrive while the queue is not empty join
+it (`feeding`), so nothing overtakes.
 """
 
 from __future__ import annotations
@@ -15,25 +20,82 @@ from textual import events
 from textual.screen import ModalScreen
 from textual.widget import Widget
 
+FOCUS_KEYS = {"tab": "focus_next", "shift+tab": "focus_previous"}  # moved here, not by the field
+
 
 class FieldDialog(ModalScreen):
     """A modal screen with at least one field that takes the focus when it is up."""
 
     def __init__(self) -> None:
         super().__init__()
-        self._early_keys: list[events.Key] = []
+        self._queue: list[events.Key] = []
+        self._handing = False
+        """A key is with a field and not yet handled."""
+        self._after_enter = False
+        """An Enter was handed over: the rest wait until the dialog stays or goes."""
+
+    @property
+    def feeding(self) -> bool:
+        """Keys typed ahead are still being handed over (new keys must queue behind them)."""
+        return bool(self._queue) or self._handing
+
+    def take_key(self, key: events.Key) -> None:
+        """A key meant for this dialog that reached it another way: queue it and hand it over in turn."""
+        self._queue.append(events.Key(key.key, key.character))
+        self._hand_next()
 
     def _forward_event(self, event: events.Event) -> None:
-        """The app hands a key to the screen itself while no field has the focus: keep it."""
-        if isinstance(event, events.Key) and self.focused is None and not event.is_forwarded:
-            self._early_keys.append(event)
+        """The app hands a key to the screen itself while no field has the focus: queue it."""
+        if isinstance(event, events.Key) and not event.is_forwarded and (self.focused is None or self.feeding):
+            self.take_key(event)
             return
         super()._forward_event(event)
 
     def set_focus(self, widget: Widget | None, scroll_visible: bool = True, from_app_focus: bool = False) -> None:
-        """Focus `widget`; the keys that came before any field had the focus go to it first."""
+        """Focus `widget`; queued keys go on to it."""
         super().set_focus(widget, scroll_visible, from_app_focus)
-        if self.focused is not None and self._early_keys:
-            early, self._early_keys = self._early_keys, []
-            for key in early:
-                self.focused._forward_event(key)
+        self._hand_next()
+
+    def _hand_next(self) -> None:
+        if self._handing or self._after_enter or not self._queue or self.focused is None:
+            return
+        if not self.is_attached or self.app.screen is not self:
+            return
+        key = self._queue.pop(0)
+        if key.key in FOCUS_KEYS:
+            getattr(self, FOCUS_KEYS[key.key])()
+            self._hand_next()
+            return
+        target = self.focused
+        self._handing = True
+        self._after_enter = key.key == "enter"
+        target._forward_event(key)
+        self._after_each([target, *target.ancestors])
+
+    def _after_each(self, nodes: list) -> None:
+        """Go on once the key has been through `nodes` in turn, up to the app (a field handles a
+        character itself, but Backspace, arrows or Enter only as a binding, where the key ends
+        up at the app): each node's queue holds the key ahead of this call."""
+        if not nodes:
+            self._handing = False
+            self._hand_next()
+            return
+        nodes[0].call_later(self._after_each, nodes[1:])
+
+    def stay(self) -> None:
+        """The dialog refused what Enter would apply and stays: the keys typed after it go on."""
+        self.app.bell()
+        self._after_enter = False
+        self._hand_next()
+
+    def dismiss(self, result=None):
+        """Close (once: a second Enter or Escape that reaches a closing dialog does nothing); keys
+        still queued go back to the app, for the screen underneath."""
+        if not self.is_attached or self.app.screen is not self:
+            return None
+        queued, self._queue = self._queue, []
+        self._after_enter = False
+        done = super().dismiss(result)
+        for key in queued:
+            self.app.post_message(events.Key(key.key, key.character))
+        return done

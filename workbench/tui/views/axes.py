@@ -72,27 +72,26 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
     AxesView { layers: default editor; }
     """
 
-    # A key that opens a dialog is a priority binding: it runs as the app receives it, so the keys
-    # typed right after it (in a bunch over SSH) go to the dialog, not to the table under it.
+    # The view runs these as each key passes it, in the order typed (`CellsInPlace.on_key`).
     BINDINGS = [
-        Binding("enter", "edit_cell", "Edit", priority=True,
+        Binding("enter", "edit_cell", "Edit",
                 tooltip="Edit the cell under the cursor: law, span, end position or time", id="edit"),
-        Binding("enter", "apply_edit", "Apply", priority=True,
+        Binding("enter", "apply_edit", "Apply",
                 tooltip="Apply the value typed in the cell (a refused value stays, with the reason)",
                 id="apply"),
         Binding("escape", "cancel_edit", "Cancel", tooltip="Close the cell being edited; nothing changes",
                 id="cancel"),
-        Binding("l", "law", "Law", show=False, priority=True, tooltip="Choose the law of the segment from the list with Cv, Ca, Cj"),
-        Binding("a", "add", "Add", priority=True, tooltip="Insert a segment after this one; its span comes from another"),
+        Binding("l", "law", "Law", show=False, tooltip="Choose the law of the segment from the list with Cv, Ca, Cj"),
+        Binding("a", "add", "Add", tooltip="Insert a segment after this one; its span comes from another"),
         Binding("d,delete", "delete", "Del", tooltip="Delete the segment; a neighbouring dwell takes its span"),
         Binding("s", "split", "Split", show=False, tooltip="Halve the segment into two of the same law meeting halfway"),
         Binding("left_square_bracket", "move(-1)", "Earlier", show=False, key_display="[",
                 tooltip="Move the segment one place earlier in the cycle"),
         Binding("right_square_bracket", "move(1)", "Later", show=False, key_display="]",
                 tooltip="Move the segment one place later in the cycle"),
-        Binding("m", "speed", "Speed", priority=True, tooltip="Change the machine speed (cycles/min)"),
-        Binding("n", "rename", "Rename", show=False, priority=True, tooltip="Rename the axis; its cams and linkage drivers follow"),
-        Binding("L", "limits", "Limits", key_display="L", priority=True,
+        Binding("m", "speed", "Speed", tooltip="Change the machine speed (cycles/min)"),
+        Binding("n", "rename", "Rename", show=False, tooltip="Rename the axis; its cams and linkage drivers follow"),
+        Binding("L", "limits", "Limits", key_display="L",
                 tooltip="Velocity, acceleration and jerk limits of this axis"),
         Binding("comma", "cycle_axis(-1)", "Prev axis", key_display=",", show=False,
                 tooltip="Show the previous axis"),
@@ -249,22 +248,36 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
         try:
             screen, note = build()
         except EditError as exc:
+            self._cursor_after = None
             self.post_message(Status(exc.message, error=True))
             self.app.bell()
             return
+        base = self.project
+        held = False
+
+        def closing() -> None:
+            nonlocal held
+            held = not self.holding
+            self._hold()  # the screen under the dialog comes back with the edit's numbers
 
         def done(project: Project | None) -> None:
-            if project is None or project.same_content(self.project):
+            stale = project is not None and self.project is not base
+            if project is None or stale or project.same_content(base):
                 self._cursor_after = None
                 self.drop_ahead()
-                self._release()  # held as it closed: nothing is coming
-                if project is not None:
+                if held:
+                    self._release()  # held as it closed, and nothing is coming
+                if stale:  # an edit came in while it was open (an undo, say): its result would drop it
+                    self.post_message(Status("refused — the project changed while the dialog was open; "
+                                             "nothing applied", error=True))
+                    self.app.bell()
+                elif project is not None:
                     self.post_message(Status("nothing changed: the value is the one the project has"))
-            else:
-                self._hold()  # held already (closing), unless the dialog dismissed itself
-                self.post_message(ProjectEdited(project, note if isinstance(note, str) else note(project)))
+                return
+            self._hold()  # held already (closing), unless the dialog dismissed itself
+            self.app.post_message(ProjectEdited(project, note if isinstance(note, str) else note(project)))
 
-        screen.listen(candidate=self.want_numbers, closing=self._hold)
+        screen.listen(candidate=self.want_numbers, closing=closing)
         self.app.push_screen(screen, done)
 
     def _apply(self, edit: Callable[[], Project], note: str) -> bool:
@@ -278,10 +291,11 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
             self.post_message(Status(f"refused — {exc.message}", error=True))
             self.app.bell()
             return False
-        self.post_message(ProjectEdited(project, note))
+        self.app.post_message(ProjectEdited(project, note))  # to the app at once: behind it, an undo typed next
         return True
 
-    def action_edit_cell(self) -> None:
+    def edit_cell(self) -> None:
+        """Open the cell under the cursor: typed over in place, or the law list."""
         column = self.query_one(SegmentTable).column_key
         p, name, i = self.project, self.axis_name, self._index
         if column in IN_PLACE:

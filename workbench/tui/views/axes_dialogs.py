@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from typing import Callable
 
-from motionlaws import analyse
+from motionlaws import Limits, analyse
 
 from ... import editing
 from ...editing import EditError, parse_number, segment_ends
@@ -18,8 +18,8 @@ from ...projectfile import Project
 from ..format import number, unit_of
 from ..screens.add_segment import AddSegmentDialog
 from ..screens.edit_value import EditDialog
+from ..screens.fields_dialog import Field, FieldsDialog
 from ..screens.law_picker import LawPicker
-from ..screens.limits import LimitsDialog
 from ..screens.model_dialog import ModelDialog
 from ..widgets.cell_editor import CellEdit
 
@@ -56,10 +56,12 @@ def describe(old: Project, new: Project, axis_name: str) -> str:
 def most_used(project: Project, axis_names: list[str]) -> str:
     """"jerk at 116 % of its limit, LIMIT EXCEEDED": the most used limit of the named axes
     (the axis named too when there are several); "" when none has limits."""
-    worst, ok = None, True
+    worst, ok, unlimited = None, True, []
     for name in axis_names:
         report = analyse(project.programs[name], project.speed)
         ok = ok and report.ok
+        if not report.checks:
+            unlimited.append(name)
         for check in report.checks:
             if worst is None or check.used > worst[1].used:
                 worst = (name, check)
@@ -67,8 +69,13 @@ def most_used(project: Project, axis_names: list[str]) -> str:
         return ""
     name, check = worst
     share = "∞" if check.used == float("inf") else f"{check.used * 100:.0f} %"
-    state = ("all within limits" if len(axis_names) == 1 else "all axes within limits") if ok \
-        else "LIMIT EXCEEDED"
+    if not ok:
+        state = "LIMIT EXCEEDED"
+    elif len(axis_names) == 1:
+        state = "all within limits"
+    else:
+        state = "all axes within limits" if not unlimited else \
+            f"all limits met; {', '.join(unlimited)}: no limits"
     who = f"{name} " if len(axis_names) > 1 else ""
     return f"{who}{check.quantity} at {share} of its limit, {state}"
 
@@ -178,9 +185,11 @@ def speed_dialog(project: Project) -> tuple[ModelDialog, Note]:
     m = project.machine
     form = " (the file gives cycle_time; it is kept in that form)" if m.speed is None else ""
 
+    shown = f"{project.speed:g}"
+
     def attempt(text, _choice):
-        return editing.set_speed(project, parse_number(text, "speed", positive=True,
-                                                       units=("cycles/min", "cpm", "/min")))
+        speed = parse_number(text, "speed", positive=True, units=("cycles/min", "cpm", "/min"))
+        return project if text.strip() == shown else editing.set_speed(project, speed)  # shown rounded
 
     def explain(p: Project) -> str:
         return (f"{number(p.speed, 'cycles/min')} = {number(60_000.0 / p.speed, 'ms')} per cycle"
@@ -189,16 +198,25 @@ def speed_dialog(project: Project) -> tuple[ModelDialog, Note]:
     def note(p: Project) -> str:
         return f"machine speed {number(project.speed, 'cycles/min')} → {number(p.speed, 'cycles/min')}"
 
-    screen = EditDialog("Machine speed", f"speed [cycles/min]{form}:", f"{project.speed:g}",
-                        attempt, explain)
+    screen = EditDialog("Machine speed", f"speed [cycles/min]{form}:", shown, attempt, explain)
     return screen, note
 
 
 def limits_dialog(project: Project, axis_name: str) -> tuple[ModelDialog, Note]:
     axis = project.axis(axis_name)
-    screen = LimitsDialog(axis_name, axis.unit, axis.limits,
-                          lambda limits: editing.set_limits(project, axis_name, limits),
-                          lambda p: most_used(p, [axis_name]))
+    fields = [Field(q, f"{q} [{unit_of(q, axis.unit)}]", "" if value is None else f"{value:g}", "blank: no limit")
+              for q, value in axis.limits.items()]
+
+    def attempt(texts: tuple[str, ...]) -> Project:
+        values = {q: parse_number(text, f"{q} limit", positive=True, allow_blank=True,
+                                  units=(unit_of(q, axis.unit),))
+                  for q, text in zip(editing.QUANTITIES, texts)}
+        if texts == tuple(f.value for f in fields):
+            return project  # as shown (rounded): the limits as they are
+        return editing.set_limits(project, axis_name, Limits(**values))
+
+    screen = FieldsDialog(f"Limits of axis {axis_name}", fields, attempt,
+                          lambda p: most_used(p, [axis_name]), hint="blank: no limit")
 
     def note(p: Project) -> str:
         return f"limits of axis {axis_name}: " + limits_change(axis, p.axis(axis_name))

@@ -75,8 +75,8 @@ class CamView(WorkbenchView):
     #cam-empty { padding: 1 2; }
     """
 
-    # Keys that open a dialog are priority bindings: the keys typed right after reach the dialog
-    # (`screens.typed_ahead`).
+    # Keys that open a dialog are ordinary bindings, in order with the keys typed before them; keys
+    # typed right after them come back to the dialog (`Workbench.on_key`, `screens.typed_ahead`).
     BINDINGS = [
         Binding("right", f"step({COARSE_STEP:g})", f"+{COARSE_STEP:g}°", key_display="→", priority=True,
                 tooltip=f"Turn the cam {COARSE_STEP:g}° on"),
@@ -89,13 +89,13 @@ class CamView(WorkbenchView):
         Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Cam angle back to 0°"),
         Binding("w", "worst", "Worst spot", tooltip="Turn to the largest pressure angle, the least radius, "
                 "then any undercut, cusp or corner, in turn"),
-        Binding("s", "sizes", "Sizes", priority=True, tooltip="Change a size of the follower: prime or base circle, roller, "
+        Binding("s", "sizes", "Sizes", tooltip="Change a size of the follower: prime or base circle, roller, "
                 "offset, face, arm (refused with the reason where the cam cannot take it)", id="cam-sizes"),
         Binding("t", "turning", "Reverse", show=False, tooltip="Reverse the cam's turning (cw ↔ ccw); a translating "
                 "follower's offset keeps to the side that eases the rise, so its cam is mirrored", id="cam-turning"),
-        Binding("L", "limits", "Limits", key_display="L", show=False, priority=True, tooltip="Change the cam's limits: "
+        Binding("L", "limits", "Limits", key_display="L", show=False, tooltip="Change the cam's limits: "
                 "pressure angle, curvature ratio, least profile radius (blank: common practice)", id="cam-limits"),
-        Binding("e", "export", "Export", priority=True, tooltip="Write the profile as CSV, DXF or SVG (the writer of "
+        Binding("e", "export", "Export", tooltip="Write the profile as CSV, DXF or SVG (the writer of "
                 "camwright profile)", id="cam-export"),
         Binding("comma", "cycle_cam(-1)", "Prev cam", key_display=",", show=False, tooltip="Show the previous cam"),
         Binding("full_stop", "cycle_cam(1)", "Next cam", key_display=".", show=False, tooltip="Show the next cam"),

@@ -1,19 +1,25 @@
 """The view side of editing a table's cells in place (`CellsInPlace`, a mixin for a view).
 
 The view keeps the keyboard focus on its `SegmentTable` and hands the open
-`CellEditor` the keys that edit its line; other keys go on to the bindings
-as usual.  Enter applies (`action_apply_edit`, in turn with the typed keys):
-the editor closes, screen updates are held (the host's `_hold`) and the edit
-goes up as `ProjectEdited`, so the editor's closing and the edit are painted
-together.
+`CellEditor` the keys that edit its line.  Enter applies: the editor
+closes, screen updates are held (the host's `_hold`) and the edit goes up as
+`ProjectEdited`, so the editor's closing and the edit are painted together.
 The numbers of what is typed are computed while it is typed (the host's
 `want_numbers`, `views.ahead.NumbersAhead`), so Enter finds them done.
 
+Keys act in the order they were typed, even when they arrive in a bunch
+(`on_key`): each key reaches the view before the app's bindings, so the
+view runs its own and its table's bindings as the key passes, rather than
+let the app run them after keys the view has acted on ("↓ enter" edits the
+cell below; "enter 1 2 0 enter" applies 120; "↓ l" picks the law of the
+segment below; keys typed after one that opened a dialog go to the dialog).
+
 The host provides `project`, `axis_name`, `_hold()`, `want_numbers(project)`,
-`drop_ahead()`, `action_edit_cell()`, a `SegmentTable`, a `CellField` and an
-`EditNote` among its children, and bindings for `apply_edit` (enter,
-priority) and `cancel_edit` (escape); it calls
-`_init_cells()` in `__init__` and `_mount_cells()` on mount.
+`drop_ahead()`, `edit_cell()` (open the cell under the cursor), a
+`SegmentTable`, a `CellField` and an `EditNote` among its children, and
+bindings for `edit_cell` and `apply_edit` (enter) and `cancel_edit`
+(escape); it calls `_init_cells()` in `__init__` and `_mount_cells()` on
+mount.
 """
 
 from __future__ import annotations
@@ -22,7 +28,6 @@ from typing import Callable
 
 from textual import events
 from textual.geometry import Region
-from textual.message import Message
 from textual.widgets import DataTable
 
 from ...editing import EditError
@@ -32,10 +37,6 @@ from .segment_table import SegmentTable
 
 EDITOR_ACTIONS = ("apply_edit", "cancel_edit")  # the view's actions while a cell is edited
 KEPT_FOCUS = ("tab", "shift+tab")  # keys that would move the focus away: an open editor swallows them
-
-
-class EnterTyped(Message):
-    """Enter in an open cell, sent through the table to come after the keys typed before it."""
 
 
 class CellsInPlace:
@@ -98,19 +99,18 @@ class CellsInPlace:
             self.refresh_bindings()
 
     def action_apply_edit(self) -> None:
-        """Enter in an open cell.  The app runs a priority binding as the key arrives, ahead of
-        keys typed before it that are still on their way to the table, so the Enter goes the same
-        way (`EnterTyped`, through the table) and a quick "enter 1 2 0 enter" applies 120."""
+        """Enter in an open cell (from the palette; a typed Enter comes through `on_key`)."""
         if self.editing:
-            self.query_one(SegmentTable).post_message(EnterTyped())
+            self._apply_typed()
 
-    def on_enter_typed(self, message: EnterTyped) -> None:
-        """The Enter, after the keys typed before it: the edit goes up with the editor's closing,
-        or the reason stays; a key before it closed the editor (escape): edit the cell again."""
-        message.stop()
+    def action_edit_cell(self) -> None:
+        """Enter on a cell (from the palette; a typed Enter comes through `on_key`)."""
         if not self.editing:
-            self.action_edit_cell()
-            return
+            self.edit_cell()
+
+    def _apply_typed(self) -> None:
+        """The value typed in the open cell: the edit goes up with the editor's closing, or the
+        reason stays."""
         project = self.editor.result
         if project is None:
             self.app.bell()  # refused: the reason is on view under the cell
@@ -121,7 +121,7 @@ class CellsInPlace:
         self.editor.close()
         self._footer_stale = True
         self._hold()  # the editor closing and the edit reach the screen together
-        self.post_message(ProjectEdited(project, self._edit_note))
+        self.app.post_message(ProjectEdited(project, self._edit_note))
 
     def action_cancel_edit(self) -> None:
         self._close_editor()
@@ -130,21 +130,50 @@ class CellsInPlace:
         """While a cell is edited only its keys act here; otherwise only they do not."""
         return (action in EDITOR_ACTIONS) == self.editing
 
-    def on_key(self, event: events.Key) -> None:
-        """An open editor takes the keys that edit its line, and Escape; the rest go on to the
-        bindings as usual (save, undo, help ...; one that moves the cursor or changes the
-        project closes it)."""
-        if not self.editing:
+    async def on_key(self, event: events.Key) -> None:
+        """Every key that reaches the view acts here, in the order it was typed.
+
+        An open editor takes the keys that edit its line, Enter and Escape.  A
+        dialog that a key before this one opened takes it (`take_key`).  Else
+        Enter opens the cell, and the view's and the table's bindings run now —
+        not once the key has travelled on to the app, where a binding runs
+        after keys the view has already acted on.  The app's own keys (save,
+        undo, help, views) go on to it, behind the edits the view has sent."""
+        if self.editing:
+            if event.key == "enter":
+                self._apply_typed()
+            elif event.key == "escape":
+                self.action_cancel_edit()
+            elif event.is_printable and event.character:
+                self.editor.type(event.character)
+            elif not self.editor.key(event.key) and event.key not in KEPT_FOCUS:
+                return
+            event.stop()
+            event.prevent_default()
+            self._compute_ahead()
             return
-        if event.key == "escape":
-            self.action_cancel_edit()
-        elif event.is_printable and event.character:
-            self.editor.type(event.character)
-        elif not self.editor.key(event.key) and event.key not in KEPT_FOCUS:
+        covering = self.app.screen
+        if covering is not self.screen:
+            take = getattr(covering, "take_key", None)
+            if take is not None:
+                take(event)
+            event.stop()
+            event.prevent_default()
+            return
+        if event.key == "enter":
+            self.edit_cell()
+        elif not await self._run_binding(event.key):
             return
         event.stop()
         event.prevent_default()
-        self._compute_ahead()
+
+    async def _run_binding(self, key: str) -> bool:
+        """Run the table's or the view's binding of `key` (as the app would), if any acts."""
+        for node in (self.query_one(SegmentTable), self):
+            for binding in node._bindings.key_to_bindings.get(key, ()):
+                if not binding.priority and await self.app.run_action(binding.action, node):
+                    return True
+        return False
 
     def on_paste(self, event: events.Paste) -> None:
         if self.editing:

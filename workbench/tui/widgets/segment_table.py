@@ -34,6 +34,11 @@ class SegmentTable(DataTable):
     SegmentTable { height: auto; max-height: 9; }
     """
 
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        """Enter is the view's (edit the cell), not the table's select: left out here, so the view's
+        binding is the one shown and run."""
+        return action != "select_cursor"
+
     def __init__(self, **kwargs):
         super().__init__(cursor_type="cell", zebra_stripes=True, **kwargs)
         self.axis: Axis | None = None
