@@ -249,13 +249,17 @@ async def test_a_cell_editor_closing_and_its_edit_are_painted_together(monkeypat
 
     app = Workbench(load_project(preset_path("tray-lidder")))
     held_when_sent = []
+    apply_edit = app.apply_edit
 
-    def hook(message) -> None:
-        if isinstance(message, ProjectEdited) and not held_when_sent:
+    def watched_apply_edit(project, note) -> None:
+        if not held_when_sent:
             view = app.query_one("#axes")
             held_when_sent.append((view.holding, view.editing))
+        apply_edit(project, note)
 
-    async with app.run_test(size=(80, 24), message_hook=hook) as pilot:
+    app.apply_edit = watched_apply_edit
+
+    async with app.run_test(size=(80, 24)) as pilot:
         await settle(pilot)
         view = app.query_one("#axes")
         screen = app.screen
@@ -379,9 +383,20 @@ async def test_a_dialog_closing_and_its_edit_are_painted_together():
     app = Workbench(load_project(preset_path("tray-lidder")))
     held_at = {}
 
+    def held() -> bool:
+        return app._batch_count > 0  # Textual's count of open `batch_update`s: no screen update
+
     def hook(message) -> None:
-        if isinstance(message, (events.ScreenResume, ProjectEdited)) and app.is_running:
-            held_at.setdefault(type(message).__name__, app.query_one("#axes").holding)
+        if isinstance(message, events.ScreenResume) and app.is_running:
+            held_at.setdefault("screen back", held())
+
+    apply_edit = app.apply_edit
+
+    def watched_apply_edit(project, note) -> None:
+        held_at.setdefault("edit", held())
+        apply_edit(project, note)
+
+    app.apply_edit = watched_apply_edit
 
     async with app.run_test(size=(80, 24), message_hook=hook) as pilot:
         await settle(pilot)
@@ -389,7 +404,7 @@ async def test_a_dialog_closing_and_its_edit_are_painted_together():
         held_at.clear()
         await pilot.press("enter")
         await settle(pilot)
-        assert held_at == {"ScreenResume": True, "ProjectEdited": True}
+        assert held_at == {"screen back": True, "edit": True}
         assert app.project.speed == 110.0 and not app.query_one("#axes").holding
 
 

@@ -714,3 +714,33 @@ async def test_the_speed_dialog_says_which_axis_a_speed_would_push_hardest():
         share = 2.0 * 180.0 / t / 2500.0
         feedback = str(app.screen.query_one("#feedback").render())
         assert f"tray-pusher velocity at {share * 100:.0f} % of its limit, all axes within limits" in feedback
+
+
+def segments(app) -> list:
+    return [(s.law, s.span) for s in app.project.axis(LID).segments]
+
+
+@pytest.mark.parametrize("pressed, bunches, check", [
+    # an edit lands before the key after it acts: nothing typed is built on the state before it
+    ((), [("m", "1", "1", "0", "enter", "d")], lambda app: app.project.speed == 110.0 and len(segments(app)) == 2),
+    ((), [("d", "m", "1", "1", "0", "enter")], lambda app: app.project.speed == 110.0 and len(segments(app)) == 2),
+    ((), [("right", "right", "enter", "1", "0", "0", "enter", "down", "enter", "5", "0", "enter")],
+     lambda app: segments(app)[0][1] == 100.0 and segments(app)[1][1] == 50.0),
+    # a cursor move from before Enter does not close the cell Enter opened
+    (("right", "right"), [("down", "enter"), ("1", "2", "0", "enter")],
+     lambda app: segments(app)[1][1] == 120.0 and app.query_one("#views").current == "axes"),
+    # the app's keys keep their turn: undo, then split
+    (("d",), [("u", "s")], lambda app: len(segments(app)) == 4),
+    # a bunch typed into a dialog already open: Backspace before the digits after it
+    (("m",), [("backspace", "9", "0", "enter")], lambda app: app.project.speed == 90.0),
+])
+async def test_edits_and_keys_in_a_bunch_land_in_order(pressed, bunches, check):
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        if pressed:
+            await pilot.press(*pressed)
+            await settle(pilot)
+        for keys in bunches:
+            await type_in_a_bunch(pilot, *keys)
+        assert app.is_running and check(app)

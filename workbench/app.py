@@ -167,11 +167,16 @@ class Workbench(TypedAhead, App):
         self.results = message.results
         self.current_view.show_results(message.project, message.results)
 
+    def apply_edit(self, project: Project, note: str) -> None:
+        """Make `project` the current state at once (one undo step named `note`).  Views call this
+        rather than post `ProjectEdited`, so a key typed right after the edit acts on it."""
+        self.history.push(project, note)
+        self.set_status(note)
+        self._show_state()
+
     @on(ProjectEdited)
     def _edited(self, message: ProjectEdited) -> None:
-        self.history.push(message.project, message.note)
-        self.set_status(message.note)
-        self._show_state()
+        self.apply_edit(message.project, message.note)
 
     @on(Status)
     def _status(self, message: Status) -> None:

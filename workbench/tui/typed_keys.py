@@ -5,8 +5,8 @@ app receives them; a key that opens a dialog does so only once it has gone
 through the view to the app's bindings, in order with the keys before it.
 The keys typed after it have gone to the screen under the dialog by then:
 they come back up unhandled, and here, before the app's bindings, they are
-handed to the dialog (`take_key`, `screens.typed_ahead`).  Keys that arrive while a dialog is
-still taking keys typed ahead queue behind them.  (The Axes view hands on
+handed to the dialog (`take_key`, `screens.typed_ahead`).  Every key that arrives while such a
+dialog is on top goes through its queue too.  (The Axes view hands on
 the keys that reach it itself, `cell_editing.CellsInPlace.on_key`.)
 """
 
@@ -25,8 +25,11 @@ class TypedAhead:
     async def on_event(self, event: events.Event) -> None:
         if isinstance(event, events.Key) and not event.is_forwarded:
             screen = self.screen
-            if isinstance(screen, FieldDialog) and screen.feeding:
-                screen.take_key(event)  # behind the keys still being handed to its fields
+            if isinstance(screen, FieldDialog):
+                # every key to a dialog's fields goes through its queue, one at a time: a field
+                # takes a character at once but Backspace, Tab or Enter only at the app's bindings
+                if not await self._check_bindings(event.key, priority=True):  # ctrl+q acts at once
+                    screen.take_key(event)
                 return
             setattr(event, TYPED_ON, screen)
         await super().on_event(event)

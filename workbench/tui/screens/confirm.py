@@ -30,11 +30,28 @@ class ChoiceDialog(ModalScreen[str | None]):
             yield Label("  [b]esc[/b]  cancel", classes="dialog-hint")
 
     def on_key(self, event) -> None:
+        """An answer's key, or Escape, here: in the order typed (a binding would run later).  A key
+        that comes after the answer is for what the answer opens: back to the app with it."""
+        if self.app.screen is not self:
+            event.stop()
+            event.prevent_default()
+            self.app.post_message(events.Key(event.key, event.character))
+            return
         for key, word, _ in self.answers:
             if event.key == key:
                 event.stop()
                 self.dismiss(word)
                 return
+        if event.key == "escape":
+            event.stop()
+            event.prevent_default()
+            self.dismiss(None)
+
+    def dismiss(self, result=None):
+        """Close with `result` (once: a second answer that reaches a closing question does nothing)."""
+        if not self.is_attached or self.app.screen is not self:
+            return None
+        return super().dismiss(result)
 
     def take_key(self, key: events.Key) -> None:
         """A key typed before the question was up (it went to the screen under it): an answer."""

@@ -19,8 +19,11 @@ from __future__ import annotations
 from textual import events
 from textual.screen import ModalScreen
 from textual.widget import Widget
+from textual.widgets import DataTable, Input
 
 FOCUS_KEYS = {"tab": "focus_next", "shift+tab": "focus_previous"}  # moved here, not by the field
+HAND_WAIT_S = 0.3  # the longest a key in hand holds back the next (a widget on its way was removed)
+SUBMITTING = (Input, DataTable)  # fields whose Enter closes the dialog (`dismiss`) or is refused (`stay`)
 
 
 class FieldDialog(ModalScreen):
@@ -33,6 +36,8 @@ class FieldDialog(ModalScreen):
         """A key is with a field and not yet handled."""
         self._after_enter = False
         """An Enter was handed over: the rest wait until the dialog stays or goes."""
+        self._handed = 0
+        """How many keys have been handed over (the one in hand is the last)."""
 
     @property
     def feeding(self) -> bool:
@@ -68,19 +73,39 @@ class FieldDialog(ModalScreen):
             return
         target = self.focused
         self._handing = True
-        self._after_enter = key.key == "enter"
+        self._handed += 1
+        self._after_enter = key.key == "enter" and isinstance(target, SUBMITTING)
         target._forward_event(key)
-        self._after_each([target, *target.ancestors])
+        n = self._handed
+        self._after_each(n, [target, *target.ancestors])
+        self.set_timer(HAND_WAIT_S, lambda: self._went_through(n))
+        if self._after_enter:
+            self.set_timer(HAND_WAIT_S, lambda: self._enter_waited(n))
 
-    def _after_each(self, nodes: list) -> None:
-        """Go on once the key has been through `nodes` in turn, up to the app (a field handles a
+    def _after_each(self, n: int, nodes: list) -> None:
+        """Go on once key `n` has been through `nodes` in turn, up to the app (a field handles a
         character itself, but Backspace, arrows or Enter only as a binding, where the key ends
         up at the app): each node's queue holds the key ahead of this call."""
+        nodes = [node for node in nodes if node.is_attached or node is self.app]
         if not nodes:
-            self._handing = False
-            self._hand_next()
+            self._went_through(n)
             return
-        nodes[0].call_later(self._after_each, nodes[1:])
+        nodes[0].call_later(self._after_each, n, nodes[1:])
+
+    def _went_through(self, n: int) -> None:
+        """Key `n` has been handled (or `HAND_WAIT_S` passed: a widget on its way was removed, an
+        Enter opened a list): the next may go."""
+        if n != self._handed or not self._handing:
+            return
+        self._handing = False
+        self._hand_next()
+
+    def _enter_waited(self, n: int) -> None:
+        """`HAND_WAIT_S` after Enter `n` the dialog is still up and said nothing (an Enter that
+        opened a drop-down list, say): the keys after it go on."""
+        if n == self._handed and self._after_enter and self.is_attached and self.app.screen is self:
+            self._after_enter = False
+            self._hand_next()
 
     def stay(self) -> None:
         """The dialog refused what Enter would apply and stays: the keys typed after it go on."""

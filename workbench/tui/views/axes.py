@@ -2,7 +2,7 @@
 
 Keys act on the segment under the cursor.  Every edit goes through a pure
 operation of `workbench.editing` (via `axes_dialogs` where something must be
-typed) and leaves as a `ProjectEdited` message; the app keeps the history
+typed) and is applied at once by the app (`Workbench.apply_edit`), which keeps the history
 and sends the new state back down with `show_project`.
 
 A new state and its numbers reach the screen in one update: from
@@ -42,7 +42,7 @@ from ...editing import EditError
 from ...projectfile import Project
 from ..compute import AxisResult
 from ..format import axis_verdict, number
-from ..messages import ProjectEdited, Status
+from ..messages import Status
 from ..screens.model_dialog import ModelDialog
 from ..widgets.axis_plots import PlotPanel
 from ..widgets.cell_editing import CellsInPlace
@@ -275,7 +275,10 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
                     self.post_message(Status("nothing changed: the value is the one the project has"))
                 return
             self._hold()  # held already (closing), unless the dialog dismissed itself
-            self.app.post_message(ProjectEdited(project, note if isinstance(note, str) else note(project)))
+            resumed = self.app.batch_update()  # and until the screen under the dialog has resumed:
+            resumed.__enter__()  # numbers computed ahead end the hold at once, before that
+            self.app.apply_edit(project, note if isinstance(note, str) else note(project))
+            self.screen.call_later(resumed.__exit__, None, None, None)
 
         screen.listen(candidate=self.want_numbers, closing=closing)
         self.app.push_screen(screen, done)
@@ -291,7 +294,7 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
             self.post_message(Status(f"refused — {exc.message}", error=True))
             self.app.bell()
             return False
-        self.app.post_message(ProjectEdited(project, note))  # to the app at once: behind it, an undo typed next
+        self.app.apply_edit(project, note)  # at once: a key typed next acts on the edited project
         return True
 
     def edit_cell(self) -> None:
@@ -322,7 +325,7 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
 
     def action_delete(self) -> None:
         i = self._index
-        axis = self.project.axis(self.axis_name) if self.project else None
+        axis = self.project.axis(self.axis_name) if self.project and self.axis_name else None
         if axis is None:
             return
         heir = editing.default_heir(axis, i)

@@ -4,15 +4,14 @@ The value dialog (`EditDialog`) tries every keystroke on the model
 (`workbench.editing.rename_axis`): a blank name, the same name, or one taken
 by another axis or by a table of the project is refused there with the
 reason; the preview names what follows the axis under its new name.  The
-accepted project goes up as one `ProjectEdited` (one undo step, saved like
-every other edit), and the view stays on the renamed axis.
+accepted project is applied at once (`Workbench.apply_edit`: one undo step,
+saved like every other edit), and the view stays on the renamed axis.
 """
 
 from __future__ import annotations
 
 from ... import editing
 from ...projectfile import Project
-from ..messages import ProjectEdited
 from ..screens.edit_value import EditDialog
 
 
@@ -58,7 +57,7 @@ def start_rename(view) -> None:
         new = edited.axes[index].name
         follow = followers_words(edited, new)
         note = f"renamed axis {old} to {new}" + ("" if follow == "nothing else" else f" ({follow} too)")
-        view.app.post_message(ProjectEdited(edited, note))
+        view.app.apply_edit(edited, note)
         view.app.call_later(view.select_axis, new)  # after the app's handling of the edit, in its queue
 
     view.app.push_screen(rename_dialog(project, old), done)

@@ -4,10 +4,12 @@ A view is a widget that the app keeps in a content switcher.  Contract:
 
 1. ``view_id`` and ``title`` — class attributes: a DOM id and the name on the view bar.
 2. ``show_project(project)`` — called after every edit, undo and open, at once,
-   with the new project (state flows down; a view never edits `app` directly).
+   with the new project (state flows down; a view hands its edits to
+   `app.apply_edit` and never changes the history itself).
 3. ``show_results(project, results)`` — called when the worker has finished the
    numbers for `project` (`workbench.tui.compute.AxisResult` by axis name).
-4. Edits leave the view as a `ProjectEdited` message; status lines as `Status`.
+4. Edits go to `app.apply_edit(project, note)` (at once, so the next key acts on them); status
+   lines as `Status`.
 5. ``focus_first()`` — put the keyboard focus where the view's work starts.
 """
 

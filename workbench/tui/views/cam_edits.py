@@ -6,7 +6,7 @@ that tries every keystroke on the model (`workbench.editing.set_cam_limits`):
 a refused value shows its reason where it is typed, an accepted one previews
 the cam's checks under the typed limits.  A blank pressure angle or
 curvature ratio is the common-practice value (shown greyed in the field), a
-blank min_radius no limit.  Each accepted edit goes up as a `ProjectEdited`
+blank min_radius no limit.  Each accepted edit is applied at once (`Workbench.apply_edit`)
 (one undo step, saved like every other edit).
 """
 
@@ -21,7 +21,7 @@ from ...axisreport import fmt
 from ...camfile import CamLimitsSpec, CamSpec, find_cam, follower_of, study_cam
 from ...editing import EditError, parse_number
 from ...projectfile import Project
-from ..messages import ProjectEdited, Status
+from ..messages import Status
 from ..screens.fields_dialog import Field, FieldsDialog
 from .cam_sizes import typed_form
 
@@ -51,7 +51,7 @@ def reverse_turning(view, project: Project, cam_name: str) -> None:
         view.app.bell()
         return
     mirrored = MIRRORED if FOLLOWERS[spec.follower].motion_kind == "linear" else ""
-    view.post_message(ProjectEdited(edited, f"cam {cam_name}: turning {spec.turning} → {new}{mirrored}"))
+    view.app.apply_edit(edited, f"cam {cam_name}: turning {spec.turning} → {new}{mirrored}")
 
 
 # --- limits ----------------------------------------------------------------------------
@@ -150,8 +150,7 @@ def start_limits_edit(view, project: Project, cam_name: str) -> None:
         if result is project:
             view.post_message(Status(f"cam {cam_name}: limits unchanged"))
             return
-        view.post_message(ProjectEdited(result, f"cam {cam_name}: limits "
-                                                + limits_change(spec, find_cam(result, cam_name))))
+        view.app.apply_edit(result, f"cam {cam_name}: limits " + limits_change(spec, find_cam(result, cam_name)))
 
     view.app.push_screen(limits_dialog(project, cam_name), edited)
 

@@ -5,8 +5,8 @@ values (`ChoiceDialog`, one key each); the chosen one opens the value dialog
 (`EditDialog`), which tries every keystroke on the model
 (`workbench.editing.set_cam_size`): the reason shows where a length is
 refused, and the preview says the base circle and the cam's verdict it would
-give.  The accepted project goes up as a `ProjectEdited` (one undo step, saved
-like every other edit).
+give.  The accepted project is applied at once (`Workbench.apply_edit`: one
+undo step, saved like every other edit).
 """
 
 from __future__ import annotations
@@ -22,7 +22,7 @@ from ...axisreport import fmt
 from ...camfile import find_cam, study_cam
 from ...editing import parse_number
 from ...projectfile import Project
-from ..messages import ProjectEdited, Status
+from ..messages import Status
 from ..screens.confirm import ChoiceDialog
 from ..screens.edit_value import EditDialog
 
@@ -142,8 +142,8 @@ def start_size_edit(view, project: Project, cam_name: str) -> None:
             view.post_message(Status(f"{note}: unchanged"))
             return
         old, new = spec.size(key), find_cam(result, cam_name).size(key)
-        view.post_message(ProjectEdited(result, f"{note} {shown(spec.follower, key, old)} → "
-                                                f"{shown(spec.follower, key, new)}"))
+        view.app.apply_edit(result, f"{note} {shown(spec.follower, key, old)} → "
+                                    f"{shown(spec.follower, key, new)}")
 
     def chosen(key: str | None) -> None:
         if key is not None:

@@ -2,8 +2,8 @@
 
 The view keeps the keyboard focus on its `SegmentTable` and hands the open
 `CellEditor` the keys that edit its line.  Enter applies: the editor
-closes, screen updates are held (the host's `_hold`) and the edit goes up as
-`ProjectEdited`, so the editor's closing and the edit are painted together.
+closes, screen updates are held (the host's `_hold`) and the app applies the
+edit at once, so the editor's closing and the edit are painted together.
 The numbers of what is typed are computed while it is typed (the host's
 `want_numbers`, `views.ahead.NumbersAhead`), so Enter finds them done.
 
@@ -31,7 +31,7 @@ from textual.geometry import Region
 from textual.widgets import DataTable
 
 from ...editing import EditError
-from ..messages import ProjectEdited, Status
+from ..messages import Status
 from .cell_editor import CellEdit, CellEditor, CellField, EditNote
 from .segment_table import SegmentTable
 
@@ -49,6 +49,8 @@ class CellsInPlace:
         """The note of the edit open in place (for undo and the status line)."""
         self._footer_stale = False
         """True when the footer still shows the editor's keys after it closed with an edit."""
+        self._editing_at = None
+        """The table cell the open editor is over (a cursor move there from before keeps it open)."""
 
     def _mount_cells(self) -> None:
         self.editor = CellEditor(self.query_one(CellField), self.query_one(EditNote))
@@ -76,6 +78,7 @@ class CellsInPlace:
         table = self.query_one(SegmentTable)
         table.focus()  # the keys come through the table, so they must go to it
         self._edit_note = note
+        self._editing_at = table.cursor_coordinate
         self.editor.open(edit, *self._editor_place(table))
         self.refresh_bindings()
 
@@ -121,7 +124,7 @@ class CellsInPlace:
         self.editor.close()
         self._footer_stale = True
         self._hold()  # the editor closing and the edit reach the screen together
-        self.app.post_message(ProjectEdited(project, self._edit_note))
+        self.app.apply_edit(project, self._edit_note)
 
     def action_cancel_edit(self) -> None:
         self._close_editor()
@@ -135,10 +138,11 @@ class CellsInPlace:
 
         An open editor takes the keys that edit its line, Enter and Escape.  A
         dialog that a key before this one opened takes it (`take_key`).  Else
-        Enter opens the cell, and the view's and the table's bindings run now —
-        not once the key has travelled on to the app, where a binding runs
-        after keys the view has already acted on.  The app's own keys (save,
-        undo, help, views) go on to it, behind the edits the view has sent."""
+        Enter opens the cell, and the bindings run now, from the table's up to
+        the app's (save, undo, help, views) — not once the key has travelled
+        on to the app, where a binding runs after keys the view has already
+        acted on.  A key that finds the focus gone (a view switch before it)
+        goes back to the app as if typed now."""
         if self.editing:
             if event.key == "enter":
                 self._apply_typed()
@@ -152,28 +156,21 @@ class CellsInPlace:
             event.prevent_default()
             self._compute_ahead()
             return
-        covering = self.app.screen
-        if covering is not self.screen:
+        event.stop()
+        event.prevent_default()
+        covering, table = self.app.screen, self.query_one(SegmentTable)
+        if covering is not self.screen:  # a key before this one opened a dialog (or help)
             take = getattr(covering, "take_key", None)
             if take is not None:
                 take(event)
-            event.stop()
-            event.prevent_default()
-            return
-        if event.key == "enter":
+            else:
+                self.app.post_message(events.Key(event.key, event.character))
+        elif self.app.focused is not table:  # a key before this one moved on (another view)
+            self.app.post_message(events.Key(event.key, event.character))
+        elif event.key == "enter":
             self.edit_cell()
-        elif not await self._run_binding(event.key):
-            return
-        event.stop()
-        event.prevent_default()
-
-    async def _run_binding(self, key: str) -> bool:
-        """Run the table's or the view's binding of `key` (as the app would), if any acts."""
-        for node in (self.query_one(SegmentTable), self):
-            for binding in node._bindings.key_to_bindings.get(key, ()):
-                if not binding.priority and await self.app.run_action(binding.action, node):
-                    return True
-        return False
+        else:  # every binding from the table up to the app's, as the app would run it later
+            await self.app._check_bindings(event.key)
 
     def on_paste(self, event: events.Paste) -> None:
         if self.editing:
@@ -188,7 +185,7 @@ class CellsInPlace:
             self.want_numbers(project)
 
     def on_data_table_cell_highlighted(self, event: DataTable.CellHighlighted) -> None:
-        if self.editing:
+        if self.editing and event.coordinate != self._editing_at:
             self._close_editor()  # the cursor left the cell (a click, a page key)
 
     def on_descendant_blur(self, event: events.DescendantBlur) -> None:
