@@ -729,6 +729,8 @@ def segments(app) -> list:
     # a cursor move from before Enter does not close the cell Enter opened
     (("right", "right"), [("down", "enter"), ("1", "2", "0", "enter")],
      lambda app: segments(app)[1][1] == 120.0 and app.query_one("#views").current == "axes"),
+    # cursor moves and Enter in one bunch: the cell Enter opens stays open for the digits
+    ((), [("down", "right", "right", "enter", "1", "4", "0", "enter")], lambda app: segments(app)[1][1] == 140.0),
     # the app's keys keep their turn: undo, then split
     (("d",), [("u", "s")], lambda app: len(segments(app)) == 4),
     # a bunch typed into a dialog already open: Backspace before the digits after it

@@ -185,8 +185,10 @@ class CellsInPlace:
             self.want_numbers(project)
 
     def on_data_table_cell_highlighted(self, event: DataTable.CellHighlighted) -> None:
-        if self.editing and event.coordinate != self._editing_at:
-            self._close_editor()  # the cursor left the cell (a click, a page key)
+        now = self.query_one(SegmentTable).cursor_coordinate
+        if self.editing and event.coordinate == now and now != self._editing_at:
+            self._close_editor()  # the cursor left the cell (a click, a page key); not a move from
+            #                       before Enter whose message comes late
 
     def on_descendant_blur(self, event: events.DescendantBlur) -> None:
         if self.editing and isinstance(event.widget, SegmentTable):
