@@ -3,15 +3,15 @@
 A quick hand, or keys arriving in a bunch over SSH, can send keys meant for
 a dialog before it is up: they go to the screen under it (the Axes view and
 the app hand those on, `cell_editing.CellsInPlace.on_key`,
-`tui.typed_keys`) or to the dialog screen itself while none of its fields
-has the focus.  A `FieldDialog` queues such keys (`take_key`) and hands
+`tui.typed_keys`, which also sends the dialog every key that arrives while
+it is on top).  A `FieldDialog` queues such keys (`take_key`) and hands
 them to its focused field one at a time, each once the one before has been
 through the field and its parents up to the app (where the bindings of
 Backspace, arrows and Enter run): Tab moves to the next field in its turn,
 and after Enter the rest wait — for the dialog to stay (a refused value:
 `stay`, the keys go on into it) or to close (they go back to the app, for
-the screen underneath).  Keys that arrive while the queue is not empty join
-it (`feeding`), so nothing overtakes.
+the screen underneath).  Keys that arrive meanwhile join the queue, so
+nothing overtakes.
 """
 
 from __future__ import annotations
@@ -39,22 +39,10 @@ class FieldDialog(ModalScreen):
         self._handed = 0
         """How many keys have been handed over (the one in hand is the last)."""
 
-    @property
-    def feeding(self) -> bool:
-        """Keys typed ahead are still being handed over (new keys must queue behind them)."""
-        return bool(self._queue) or self._handing
-
     def take_key(self, key: events.Key) -> None:
         """A key meant for this dialog that reached it another way: queue it and hand it over in turn."""
         self._queue.append(events.Key(key.key, key.character))
         self._hand_next()
-
-    def _forward_event(self, event: events.Event) -> None:
-        """The app hands a key to the screen itself while no field has the focus: queue it."""
-        if isinstance(event, events.Key) and not event.is_forwarded and (self.focused is None or self.feeding):
-            self.take_key(event)
-            return
-        super()._forward_event(event)
 
     def set_focus(self, widget: Widget | None, scroll_visible: bool = True, from_app_focus: bool = False) -> None:
         """Focus `widget`; queued keys go on to it."""
