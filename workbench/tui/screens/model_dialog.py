@@ -26,7 +26,6 @@ class ModelDialog(FieldDialog):
         self._told_candidate: Callable[[Any], None] | None = None
         self._told_closing: Callable[[], None] | None = None
         self._model_tried: tuple[Any, Any] | None = None
-        self._accepted = False
 
     def listen(self, candidate: Callable[[Any], None] | None = None,
                closing: Callable[[], None] | None = None) -> None:
@@ -51,9 +50,8 @@ class ModelDialog(FieldDialog):
     def accept(self, model: Any) -> None:
         """Close with `model` as the result (once: a second Enter that reaches a closing dialog
         does nothing)."""
-        if self._accepted or not self.is_attached or self.app.screen is not self:
+        if not self.is_attached or self.app.screen is not self:  # closed already (pop is at once)
             return
-        self._accepted = True
         if self._told_closing is not None:
             self._told_closing()
         self.dismiss(model)

@@ -188,8 +188,8 @@ def speed_dialog(project: Project) -> tuple[ModelDialog, Note]:
     shown = f"{project.speed:g}"
 
     def attempt(text, _choice):
-        speed = parse_number(text, "speed", positive=True, units=("cycles/min", "cpm", "/min"))
-        return project if text.strip() == shown else editing.set_speed(project, speed)  # shown rounded
+        speed = _typed(text, shown, project.speed, "speed", positive=True, units=("cycles/min", "cpm", "/min"))
+        return project if speed == project.speed else editing.set_speed(project, speed)
 
     def explain(p: Project) -> str:
         return (f"{number(p.speed, 'cycles/min')} = {number(60_000.0 / p.speed, 'ms')} per cycle"
@@ -208,12 +208,10 @@ def limits_dialog(project: Project, axis_name: str) -> tuple[ModelDialog, Note]:
               for q, value in axis.limits.items()]
 
     def attempt(texts: tuple[str, ...]) -> Project:
-        values = {q: parse_number(text, f"{q} limit", positive=True, allow_blank=True,
-                                  units=(unit_of(q, axis.unit),))
-                  for q, text in zip(editing.QUANTITIES, texts)}
-        if texts == tuple(f.value for f in fields):
-            return project  # as shown (rounded): the limits as they are
-        return editing.set_limits(project, axis_name, Limits(**values))
+        limits = Limits(**{q: _typed(text, f.value, old, f"{q} limit", positive=True, allow_blank=True,
+                                     units=(unit_of(q, axis.unit),))
+                           for (q, old), text, f in zip(axis.limits.items(), texts, fields)})
+        return project if limits == axis.limits else editing.set_limits(project, axis_name, limits)
 
     screen = FieldsDialog(f"Limits of axis {axis_name}", fields, attempt,
                           lambda p: most_used(p, [axis_name]), hint="blank: no limit")
