@@ -23,7 +23,7 @@ from workbench.tui.widgets.axis_chart import (BOUNDARY, CURVE, FRAME, LIMIT, LIM
                                               Scale, draw)
 from workbench.tui.widgets.axis_plots import AxisPlot
 
-from tests.tui_pilot import settle
+from tests.tui_pilot import settle, workers_done
 
 LID = "lid-lift"
 OTHER = "tray-pusher"
@@ -300,7 +300,7 @@ async def test_the_numbers_of_a_typed_value_are_ready_at_enter(monkeypatch):
         try:
             app.query_one("#segments").move_cursor(row=0, column=2)  # segment 1's span
             await pilot.press("enter", "1", "0", "0")
-            await app.workers.wait_for_complete()  # the view's numbers of "100", computed while typed
+            await workers_done(app)  # the view's numbers of "100", computed while typed
             await pilot.press("enter")
             await pilot.pause()
             assert app.project.axis(LID).segments[0].span == 100.0
@@ -359,7 +359,7 @@ async def test_the_numbers_of_a_dialogs_choice_are_ready_when_it_closes(monkeypa
         try:
             await open_dialog_and_choose(pilot, how)
             assert app.screen is not base
-            await app.workers.wait_for_complete()  # the view's numbers of the choice
+            await workers_done(app)  # the view's numbers of the choice
             await pilot.press("enter")
             await pilot.pause()
             assert app.screen is base and app.history.modified
@@ -415,7 +415,7 @@ async def test_a_dialog_cancelled_after_a_choice_changes_nothing():
         before = app.project
         view = app.query_one("#axes")
         await open_dialog_and_choose(pilot, "speed")
-        await app.workers.wait_for_complete()
+        await workers_done(app)
         await pilot.press("escape")
         await settle(pilot)
         assert app.project is before and not app.history.modified and not view.holding

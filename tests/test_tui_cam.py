@@ -40,6 +40,8 @@ from workbench.tui.widgets.cam_drawing import CORNER_MARK, TROUBLE_MARK, CamDraw
 from workbench.tui.widgets.cam_plots import AnglePlot, runs
 from workbench.tui.widgets.cam_verdicts import CamVerdicts
 
+from tests.tui_pilot import settle
+
 SIZE = (100, 30)
 STAMP = dict(prime=0.060, roller=0.012, offset=0.006)  # presets/cam-press.toml, [[cam]] "stamp-cam", in m
 FEED = dict(pivot=0.100, arm=0.070, prime=0.050, roller=0.010)  # [[cam]] "feed-cam"
@@ -50,15 +52,6 @@ def press_file(tmp_path) -> Path:
     path = tmp_path / "press.toml"
     shutil.copy(preset_path("cam-press"), path)
     return path
-
-
-async def settle(pilot) -> None:
-    """Let keys reach the views and the workers' numbers reach the widgets."""
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 def stamp_cam(project) -> Cam:

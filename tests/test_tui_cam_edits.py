@@ -30,6 +30,8 @@ from workbench.tui.screens.fields_dialog import FieldsDialog
 from workbench.tui.views.cam import CamView
 from workbench.tui.widgets.cam_verdicts import CamVerdicts
 
+from tests.tui_pilot import settle
+
 SIZE = (100, 30)
 
 
@@ -38,14 +40,6 @@ def press_file(tmp_path) -> Path:
     path = tmp_path / "press.toml"
     shutil.copy(preset_path("cam-press"), path)
     return path
-
-
-async def settle(pilot) -> None:
-    """Let keys reach the views and the workers' numbers reach the widgets."""
-    for _ in range(2):
-        await pilot.pause()
-        await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 async def cam_view(pilot, cams_on: int = 0) -> CamView:

@@ -15,6 +15,8 @@ from workbench.projectfile import load_project
 from workbench.tui.compute import compute_results
 from workbench.tui.widgets.peaks_panel import PeaksPanel, peak_rows, table_lines
 
+from tests.tui_pilot import workers_done
+
 
 @pytest.fixture(scope="module")
 def results():
@@ -48,7 +50,7 @@ async def test_the_panel_shows_the_lid_lift_peaks():
     app = Workbench(load_project(preset_path("tray-lidder")))
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
-        await app.workers.wait_for_complete()
+        await workers_done(app)
         await pilot.pause()
         panel = app.query_one(PeaksPanel)
         v = 2 * 40.0 / (90.0 / 360.0 * 60.0 / 120.0)  # 640 mm/s
