@@ -746,3 +746,32 @@ async def test_edits_and_keys_in_a_bunch_land_in_order(pressed, bunches, check):
         for keys in bunches:
             await type_in_a_bunch(pilot, *keys)
         assert app.is_running and check(app)
+
+
+def timing_angle(app) -> float:
+    from workbench.tui.views.timing import TimingView
+
+    return app.query_one(TimingView).angle
+
+
+@pytest.mark.parametrize("preset, keys, check", [
+    # quit waits its turn: the delete lands first, so quitting asks about the unsaved change
+    ("tray-lidder", ("d", "ctrl+q"),
+     lambda app: len(segments(app)) == 2 and dialog_title(app) == "Unsaved changes"),
+    # a view's step keys wait their turn: they step the view that the key before them showed
+    ("tray-lidder", ("2", "right", "right"),
+     lambda app: timing_angle(app) == 10.0 and app.query_one(SegmentTable).cursor_coordinate.column == 0),
+    ("tray-lidder", ("2", "right", "1", "right"),
+     lambda app: timing_angle(app) == 5.0 and app.query_one(SegmentTable).cursor_coordinate.column == 1),
+    # the Loads view's step keys step the cursor, not the scroll under it
+    ("cam-press", ("5", "right", "right", "left"), lambda app: app.query_one("#loads").angle == 5.0),
+    # a step key typed after the one that opens a dialog is the dialog's (its field's cursor)
+    ("cam-press", ("4", "L", "right"),
+     lambda app: isinstance(app.screen.focused, Input) and app.query_one("#cam").angle == 0.0),
+])
+async def test_no_key_jumps_its_turn(preset, keys, check):
+    app = Workbench(load_project(preset_path(preset)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await type_in_a_bunch(pilot, *keys)
+        assert app.is_running and check(app)

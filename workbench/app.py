@@ -51,7 +51,7 @@ class StatusLine(Static):
     """The last thing that happened, or why something was refused."""
 
 
-class Workbench(TypedAhead, App):
+class Workbench(TypedAhead, App, inherit_bindings=False):
     """camwright's terminal workbench."""
 
     CSS_PATH = "app.tcss"
@@ -67,8 +67,10 @@ class Workbench(TypedAhead, App):
         Binding("ctrl+z,u", "undo", "Undo", tooltip="Take back the last edit", id="undo"),
         Binding("ctrl+y,U", "redo", "Redo", show=False, tooltip="Do again what was undone", id="redo"),
         Binding("f1,question_mark", "help", "Help", tooltip="Keys and what they do", id="help"),
-        Binding("ctrl+q", "quit", "Quit", priority=True,
-                tooltip="Quit (asks first when there are unsaved changes)", id="quit"),
+        # no priority bindings (App's own are not inherited): quit and the palette act in their turn
+        Binding("ctrl+q", "quit", "Quit", tooltip="Quit (asks first when there are unsaved changes)", id="quit"),
+        Binding("ctrl+c", "help_quit", show=False, system=True),
+        Binding("ctrl+p", "command_palette", "palette", show=False, tooltip="Every action, by name"),
         *[Binding(str(n), f"view('{cls.view_id}')", f"{cls.title} view", show=False,
                   tooltip=f"Show the {cls.title} view", id=f"view-{cls.view_id}")
           for n, cls in enumerate(VIEWS.values(), start=1)],

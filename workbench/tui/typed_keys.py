@@ -28,8 +28,8 @@ class TypedAhead:
             if isinstance(screen, FieldDialog):
                 # every key to a dialog's fields goes through its queue, one at a time: a field
                 # takes a character at once but Backspace, Tab or Enter only at the app's bindings
-                if not await self._check_bindings(event.key, priority=True):  # ctrl+q acts at once
-                    screen.take_key(event)
+                # (the app has no priority bindings, so ctrl+q too waits its turn)
+                screen.take_key(event)
                 return
             setattr(event, TYPED_ON, screen)
         await super().on_event(event)

@@ -75,18 +75,18 @@ class CamView(WorkbenchView):
     #cam-empty { padding: 1 2; }
     """
 
-    # Keys that open a dialog are ordinary bindings, in order with the keys typed before them; keys
-    # typed right after them come back to the dialog (`Workbench.on_key`, `screens.typed_ahead`).
+    # The view runs these as each key passes it, in the order typed (`WorkbenchView.on_key`); keys
+    # typed right after one that opens a dialog go to the dialog (`screens.typed_ahead`).
     BINDINGS = [
-        Binding("right", f"step({COARSE_STEP:g})", f"+{COARSE_STEP:g}°", key_display="→", priority=True,
+        Binding("right", f"step({COARSE_STEP:g})", f"+{COARSE_STEP:g}°", key_display="→",
                 tooltip=f"Turn the cam {COARSE_STEP:g}° on"),
-        Binding("left", f"step({-COARSE_STEP:g})", f"-{COARSE_STEP:g}°", key_display="←", priority=True,
+        Binding("left", f"step({-COARSE_STEP:g})", f"-{COARSE_STEP:g}°", key_display="←",
                 tooltip=f"Turn the cam {COARSE_STEP:g}° back"),
-        Binding("shift+right", f"step({FINE_STEP:g})", f"+{FINE_STEP:g}°", show=False, priority=True,
+        Binding("shift+right", f"step({FINE_STEP:g})", f"+{FINE_STEP:g}°", show=False,
                 tooltip=f"Turn the cam {FINE_STEP:g}° on"),
-        Binding("shift+left", f"step({-FINE_STEP:g})", f"-{FINE_STEP:g}°", show=False, priority=True,
+        Binding("shift+left", f"step({-FINE_STEP:g})", f"-{FINE_STEP:g}°", show=False,
                 tooltip=f"Turn the cam {FINE_STEP:g}° back"),
-        Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Cam angle back to 0°"),
+        Binding("home", "go(0)", "0°", show=False, tooltip="Cam angle back to 0°"),
         Binding("w", "worst", "Worst spot", tooltip="Turn to the largest pressure angle, the least radius, "
                 "then any undercut, cusp or corner, in turn"),
         Binding("s", "sizes", "Sizes", tooltip="Change a size of the follower: prime or base circle, roller, "

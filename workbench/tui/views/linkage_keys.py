@@ -26,15 +26,15 @@ FINE_STEP = 1.0  # deg per shift+← →
 RATES = ("velocity", "acceleration", "jerk")
 
 LINKAGE_BINDINGS = [
-    Binding("right", f"step({COARSE_STEP:g})", f"+{COARSE_STEP:g}°", key_display="→", priority=True,
+    Binding("right", f"step({COARSE_STEP:g})", f"+{COARSE_STEP:g}°", key_display="→",
             tooltip=f"Master angle {COARSE_STEP:g}° on"),
-    Binding("left", f"step({-COARSE_STEP:g})", f"-{COARSE_STEP:g}°", key_display="←", priority=True,
+    Binding("left", f"step({-COARSE_STEP:g})", f"-{COARSE_STEP:g}°", key_display="←",
             tooltip=f"Master angle {COARSE_STEP:g}° back"),
-    Binding("shift+right", f"step({FINE_STEP:g})", f"+{FINE_STEP:g}°", show=False, priority=True,
+    Binding("shift+right", f"step({FINE_STEP:g})", f"+{FINE_STEP:g}°", show=False,
             tooltip=f"Master angle {FINE_STEP:g}° on"),
-    Binding("shift+left", f"step({-FINE_STEP:g})", f"-{FINE_STEP:g}°", show=False, priority=True,
+    Binding("shift+left", f"step({-FINE_STEP:g})", f"-{FINE_STEP:g}°", show=False,
             tooltip=f"Master angle {FINE_STEP:g}° back"),
-    Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Master angle back to 0°"),
+    Binding("home", "go(0)", "0°", show=False, tooltip="Master angle back to 0°"),
     Binding("o", "cycle_output(1)", "Output", tooltip="Show the next output of the linkage"),
     Binding("O", "cycle_output(-1)", "Prev output", key_display="O", show=False,
             tooltip="Show the previous output"),

@@ -139,15 +139,15 @@ class LoadsView(WorkbenchView):
     """
 
     BINDINGS = [
-        Binding("right", f"step({COARSE_STEP:g})", f"+{COARSE_STEP:g}°", key_display="→", priority=True,
+        Binding("right", f"step({COARSE_STEP:g})", f"+{COARSE_STEP:g}°", key_display="→",
                 tooltip=f"Cursor {COARSE_STEP:g}° later in the cycle"),
-        Binding("left", f"step({-COARSE_STEP:g})", f"-{COARSE_STEP:g}°", key_display="←", priority=True,
+        Binding("left", f"step({-COARSE_STEP:g})", f"-{COARSE_STEP:g}°", key_display="←",
                 tooltip=f"Cursor {COARSE_STEP:g}° earlier in the cycle"),
-        Binding("shift+right", f"step({FINE_STEP:g})", f"+{FINE_STEP:g}°", show=False, priority=True,
+        Binding("shift+right", f"step({FINE_STEP:g})", f"+{FINE_STEP:g}°", show=False,
                 tooltip=f"Cursor {FINE_STEP:g}° later"),
-        Binding("shift+left", f"step({-FINE_STEP:g})", f"-{FINE_STEP:g}°", show=False, priority=True,
+        Binding("shift+left", f"step({-FINE_STEP:g})", f"-{FINE_STEP:g}°", show=False,
                 tooltip=f"Cursor {FINE_STEP:g}° earlier"),
-        Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Cursor back to 0° of the cycle"),
+        Binding("home", "go(0)", "0°", show=False, tooltip="Cursor back to 0° of the cycle"),
         Binding("comma", "cycle(-1)", "Prev", key_display=",", show=False, tooltip="Show the previous loaded part"),
         Binding("full_stop", "cycle(1)", "Next", key_display=".", show=False, tooltip="Show the next loaded part"),
     ]
@@ -318,8 +318,8 @@ class LoadsView(WorkbenchView):
 
     def check_action(self, action: str, parameters) -> bool | None:
         """Cursor and picker keys only while there is something to show (or on its way)."""
-        if action in ("step", "go"):
-            return plotted(self.item)
+        if action in ("step", "go"):  # typed ahead of the items, a step moves where they will show
+            return plotted(self.item) or self.items_for is not self.project
         if action == "cycle":
             return bool(self.items) or self.items_for is not self.project
         return True

@@ -20,11 +20,11 @@ class TimingView(WorkbenchView):
     title = "Timing"
 
     BINDINGS = [
-        Binding("right", "step(5)", "+5°", key_display="→", priority=True, tooltip="Cursor 5° later in the cycle"),
-        Binding("left", "step(-5)", "-5°", key_display="←", priority=True, tooltip="Cursor 5° earlier in the cycle"),
-        Binding("shift+right", "step(1)", "+1°", show=False, priority=True, tooltip="Cursor 1° later"),
-        Binding("shift+left", "step(-1)", "-1°", show=False, priority=True, tooltip="Cursor 1° earlier"),
-        Binding("home", "go(0)", "0°", show=False, priority=True, tooltip="Cursor to master 0°"),
+        Binding("right", "step(5)", "+5°", key_display="→", tooltip="Cursor 5° later in the cycle"),
+        Binding("left", "step(-5)", "-5°", key_display="←", tooltip="Cursor 5° earlier in the cycle"),
+        Binding("shift+right", "step(1)", "+1°", show=False, tooltip="Cursor 1° later"),
+        Binding("shift+left", "step(-1)", "-1°", show=False, tooltip="Cursor 1° earlier"),
+        Binding("home", "go(0)", "0°", show=False, tooltip="Cursor to master 0°"),
     ]
 
     def __init__(self) -> None:

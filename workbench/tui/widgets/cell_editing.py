@@ -158,19 +158,11 @@ class CellsInPlace:
             return
         event.stop()
         event.prevent_default()
-        covering, table = self.app.screen, self.query_one(SegmentTable)
-        if covering is not self.screen:  # a key before this one opened a dialog (or help)
-            take = getattr(covering, "take_key", None)
-            if take is not None:
-                take(event)
-            else:
-                self.app.post_message(events.Key(event.key, event.character))
-        elif self.app.focused is not table:  # a key before this one moved on (another view)
-            self.app.post_message(events.Key(event.key, event.character))
-        elif event.key == "enter":
+        here = self.app.screen is self.screen and self.app.focused is self.query_one(SegmentTable)
+        if here and event.key == "enter":
             self.edit_cell()
-        else:  # every binding from the table up to the app's, as the app would run it later
-            await self.app._check_bindings(event.key)
+        else:  # a covering dialog's, the app's, or a binding's (`WorkbenchView.key_in_turn`)
+            await self.key_in_turn(event)
 
     def on_paste(self, event: events.Paste) -> None:
         if self.editing:
