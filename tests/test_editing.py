@@ -227,7 +227,7 @@ def test_history_undo_redo_and_saved_mark(project):
     assert h.current is project and not h.modified
     assert h.redo() == "span"
     assert h.current is one
-    h.mark_saved(one)
+    h.mark_saved()
     assert not h.modified
     h.undo()
     assert h.modified

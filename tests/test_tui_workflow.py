@@ -459,6 +459,70 @@ async def test_save_reopen_and_compare_file(project_file, tmp_path):
         assert not app.history.can_undo
 
 
+async def test_after_save_as_every_edit_and_undo_stays_with_the_new_file(project_file, tmp_path):
+    original = project_file.read_text()
+    other = tmp_path / "renamed.toml"
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("m", *"80", "enter")
+        await settle(pilot)
+        await pilot.press("f2")
+        await pilot.pause()
+        app.screen.query_one("#path", Input).value = str(other)
+        await pilot.press("enter")
+        await settle(pilot)
+        await pilot.press("m", *"90", "enter")  # an edit after the save as
+        await settle(pilot)
+        assert app.project.path == other and "renamed.toml" in str(app.query_one("#file-label").render())
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+        await pilot.press("u", "u")  # back past the save as: still the new file's project
+        await settle(pilot)
+        assert app.project.path == other and app.project.speed == load_project(project_file).speed
+    assert project_file.read_text() == original  # the file it was opened from is untouched
+    assert load_project(other).speed == 90.0
+
+
+@pytest.mark.parametrize("answer, kept", [("o", "ours"), ("escape", "theirs")])
+async def test_saving_over_a_file_changed_on_disk_asks_first(project_file, answer, kept):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("m", *"90", "enter")
+        await settle(pilot)
+        theirs = project_file.read_text() + "# a note written by another program\n"
+        project_file.write_text(theirs)
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+        assert dialog_title(app) == "Changed on disk" and project_file.read_text() == theirs
+        await pilot.press(answer)
+        await settle(pilot)
+        if kept == "ours":
+            assert load_project(project_file).speed == 90.0 and not app.history.modified
+            # saved over once by choice: the next save is not asked about again
+            await pilot.press("m", *"95", "enter", "ctrl+s")
+            await settle(pilot)
+            assert dialog_title(app) == "" and load_project(project_file).speed == 95.0
+        else:
+            assert project_file.read_text() == theirs and app.history.modified
+            assert "not saved" in app.status_text
+
+
+async def test_quitting_with_save_saves_then_quits(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("m", *"90", "enter")
+        await settle(pilot)
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+        await pilot.press("s")
+        await settle(pilot)
+        assert not app.is_running
+    assert load_project(project_file).speed == 90.0
+
+
 async def test_open_refuses_an_invalid_file(project_file, tmp_path):
     bad = tmp_path / "bad.toml"
     bad.write_text(project_file.read_text().replace("span = 150.0", "span = 15.0"))

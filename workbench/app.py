@@ -10,7 +10,6 @@ edits up as `ProjectEdited`; nothing below the app writes files.
 
 from __future__ import annotations
 
-from dataclasses import replace
 from pathlib import Path
 
 from rich.text import Text
@@ -79,6 +78,8 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
     def __init__(self, project: Project):
         super().__init__()
         self.history = History(project)
+        self._on_disk: tuple[Path, str] | None = on_disk(project)
+        """The file last read or written here and its text then (to notice a change by another)."""
         self.status_text = ""
         """The status line's text (what happened last, or why it was refused)."""
         self.results_for: Project | None = None
@@ -216,23 +217,54 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
 
     # --- files --------------------------------------------------------------
 
-    def _save_to(self, path: Path) -> bool:
-        project = self.project if path == self.project.path else replace(self.project, path=path)
+    def _save_to(self, path: Path, then=None) -> bool:
+        """Save to `path` and run `then` after; first ask when the file there has changed on disk
+        since it was opened or saved here (another program, a pull), rather than overwrite it."""
+        if not self._changed_on_disk(path):
+            return self._write(path, then)
+
+        def answered(word: str | None) -> None:
+            if word == "overwrite":
+                self._write(path, then)
+            else:
+                self.set_status(f"not saved: {path.name} on disk is as the other change left it")
+
+        self.push_screen(ChoiceDialog(
+            "Changed on disk", f"{path} has changed on disk since it was opened or saved here.",
+            [("o", "overwrite", "overwrite it with this project")]), answered)
+        return False
+
+    def _write(self, path: Path, then=None) -> bool:
         try:
-            save_project(project, path)
+            save_project(self.project, path)
         except OSError as exc:
             self.set_status(f"could not save {path}: {exc.strerror or exc}", error=True)
             return False
-        self.history.mark_saved(project)
+        self.history.move_to(path)
+        self.history.mark_saved()
+        self._on_disk = (path, self.project.source_text)
         self.set_status(f"saved {path}")
         self._refresh_bars()
+        if then is not None:
+            then()
         return True
 
-    def action_save(self) -> bool:
+    def _changed_on_disk(self, path: Path) -> bool:
+        """True when `path` is the file last read or written here and its text is not that now."""
+        if self._on_disk is None or not same_file(path, self._on_disk[0]):
+            return False
+        try:
+            return path.read_text(encoding="utf-8") != self._on_disk[1]
+        except FileNotFoundError:
+            return False  # gone: saving puts it back
+        except (OSError, UnicodeDecodeError):
+            return True
+
+    def action_save(self, then=None) -> bool:
         if self.project.path is None:
             self.action_save_as()
             return False
-        return self._save_to(self.project.path)
+        return self._save_to(self.project.path, then)
 
     def action_save_as(self) -> None:
         def attempt(path: Path) -> Path:
@@ -245,7 +277,7 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
         def done(path: Path | None) -> None:
             if path is None:
                 return
-            if path.exists() and path != self.project.path:
+            if path.exists() and not (self.project.path and same_file(path, self.project.path)):
                 self.push_screen(ChoiceDialog("File exists", f"{path} exists already.",
                                               [("o", "overwrite", "overwrite it")]),
                                  lambda word: self._save_to(path) if word == "overwrite" else None)
@@ -266,6 +298,7 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
             if project is None:
                 return
             self.history = History(project)
+            self._on_disk = on_disk(project)
             self.set_status(f"opened {project.path}")
             self._show_state()
 
@@ -283,8 +316,8 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
             return
 
         def answered(word: str | None) -> None:
-            if word == "save" and self.action_save():
-                then()
+            if word == "save":
+                self.action_save(then)
             elif word == "discard":
                 then()
 
@@ -315,6 +348,21 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
     def _show_axis(self, name: str) -> None:
         self.action_view("axes")
         self.query_one("#axes").select_axis(name)
+
+
+def on_disk(project: Project) -> tuple[Path, str] | None:
+    """(file, text) of a project read from a file, to notice later whether another changed it."""
+    if project.path is None or project.source_text is None:
+        return None
+    return project.path, project.source_text
+
+
+def same_file(a: Path, b: Path) -> bool:
+    """True when `a` and `b` name one file (relative or absolute, through links)."""
+    try:
+        return a.resolve() == b.resolve()
+    except OSError:
+        return a == b
 
 
 def run_app(path) -> int:

@@ -7,6 +7,7 @@ returns a new project, which is pushed here.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from pathlib import Path
 
 from ..editing import EditError
 from ..projectfile import Project
@@ -69,7 +70,13 @@ class History:
         self._now = self._future.pop()
         return self._now.note
 
-    def mark_saved(self, project: Project) -> None:
-        """The current state was saved as `project` (same content, maybe a new path)."""
-        self._now = Step(project, self._now.note)
-        self._saved = project
+    def mark_saved(self) -> None:
+        """The current state is the one on disk now."""
+        self._saved = self._now.project
+
+    def move_to(self, path: Path) -> None:
+        """The project's file is `path` from now on, in every state undo or redo can reach: the
+        file a project is saved to is not something undo takes back.  The snapshots keep their
+        identity (the views and the numbers' cache know them by it); only their `path` changes."""
+        for step in (*self._past, self._now, *self._future):
+            step.project.path = path
