@@ -606,6 +606,34 @@ async def test_palette_reaches_every_bound_action(project_file):
         assert len(app.project.axis(LID).segments) == 4
 
 
+async def test_the_palette_lists_each_action_once(project_file):
+    from textual.command import CommandList
+
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("ctrl+p")
+        await pilot.pause()
+        await pilot.press(*"quit")
+        await pilot.pause(0.3)
+        found = app.screen.query_one(CommandList)
+        prompts = [str(found.get_option_at_index(i).prompt) for i in range(found.option_count)]
+        assert sum("Quit" in prompt for prompt in prompts) == 1, prompts
+
+
+async def test_the_help_scrolls_with_the_keys_at_once(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("question_mark")
+        await pilot.pause()
+        body = app.screen.query_one("#help-body")
+        assert body.max_scroll_y > 0  # more keys than fit at 80×24
+        await pilot.press("pagedown")
+        await pilot.pause()
+        assert body.scroll_y > 0
+
+
 async def test_axis_switch_and_timing_view(project_file):
     app = Workbench(load_project(project_file))
     async with app.run_test(size=SIZE) as pilot:

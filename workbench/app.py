@@ -55,7 +55,7 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
 
     CSS_PATH = "app.tcss"
     TITLE = "camwright"
-    COMMANDS = App.COMMANDS | {WorkbenchCommands}
+    COMMANDS = {WorkbenchCommands}  # every action of ours, once; not the toolkit's own (theme, quit again)
     AUTO_FOCUS = None
 
     BINDINGS = [

@@ -54,6 +54,7 @@ class HelpScreen(ModalScreen):
     """Keys by where they work, with what each does."""
 
     BINDINGS = [Binding("escape,q,f1,question_mark", "close", "Close help", tooltip="Back to the work")]
+    AUTO_FOCUS = "#help-body"  # ↑ ↓ page keys scroll it at once
 
     def __init__(self, sections: list[tuple[str, list[Row]]], about: str = ""):
         super().__init__()
