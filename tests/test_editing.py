@@ -83,6 +83,16 @@ def test_default_donor_is_nearest_dwell_after_else_next(project):
     assert editing.default_donor(pusher, 1) == 2
 
 
+def test_a_segment_added_takes_its_span_from_a_dwell(project):
+    lid = project.axis(LID)  # cycloidal, dwell, modified-sine
+    assert editing.add_donor(lid, 1) == 1  # after the dwell: the dwell itself gives
+    assert editing.add_donor(lid, 0) == 1  # after the rise: the dwell after it
+    assert editing.add_donor(lid, 2) == 1  # after the return: round to the dwell
+    moving = editing.delete_segment(project, LID, 1)  # no dwell left: the segment it follows
+    assert [s.law for s in moving.axis(LID).segments] == ["cycloidal", "modified-sine"]
+    assert editing.add_donor(moving.axis(LID), 1) == 1
+
+
 def test_span_refused_when_donor_would_run_out(project):
     with pytest.raises(EditError, match="cannot give"):
         editing.set_span(project, LID, 0, 250.0)  # the dwell has only 150°

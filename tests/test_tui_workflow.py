@@ -394,10 +394,12 @@ async def test_reorder_add_speed_and_limits(project_file):
         assert app.status_text.startswith("✗ refused") and "not at its start" in app.status_text
         await pilot.press("a")  # add: the dialog proposes a 30° dwell taken from a dwell
         await pilot.pause()
-        await pilot.press("enter")  # focus is on the law list: enter opens it
+        await pilot.press("down")  # focus is on the law drop-down: ↓ opens its list, escape closes it
+        await pilot.pause()
+        assert app.screen.query_one("#law").expanded
         await pilot.press("escape")
-        app.screen.query_one("#span", Input).focus()
-        await pilot.press("enter")
+        await pilot.pause()
+        await pilot.press("enter")  # and Enter adds, from the drop-down as from a typed field
         await settle(pilot)
         assert len(app.project.axis(LID).segments) == 4
         assert math.isclose(sum(s.span for s in app.project.axis(LID).segments), 360.0)
@@ -604,6 +606,23 @@ async def test_palette_reaches_every_bound_action(project_file):
         await pilot.press("enter")
         await settle(pilot)
         assert len(app.project.axis(LID).segments) == 4
+
+
+async def test_a_segment_added_after_a_dwell_takes_the_dwells_span_and_enter_adds_from_any_field(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        before = [s.span for s in app.project.axis(LID).segments]  # rise, dwell, return
+        await pilot.press("down", "a")  # after the dwell
+        await pilot.pause()
+        assert str(app.screen.query_one("#donor").value) == "1"  # segment 2, the dwell
+        app.screen.query_one("#donor").focus()  # Enter on a drop-down adds, as on a typed field
+        await pilot.pause()
+        await pilot.press("enter")
+        await settle(pilot)
+        after = app.project.axis(LID).segments
+        assert len(after) == 4 and after[2].law == "dwell" and after[2].span == 30.0
+        assert [s.span for s in after] == [before[0], before[1] - 30.0, 30.0, before[2]]
 
 
 async def test_the_palette_lists_each_action_once(project_file):

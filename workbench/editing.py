@@ -168,6 +168,15 @@ def default_donor(axis: Axis, index: int) -> int | None:
     return (index + 1) % n
 
 
+def add_donor(axis: Axis, index: int) -> int:
+    """The segment that gives the span of a segment added after `index`: that one when it is a
+    dwell, else the nearest dwell after it (the motions keep their durations), else that one."""
+    if axis.segments[index].law == "dwell":
+        return index
+    donor = default_donor(axis, index)
+    return donor if donor is not None and axis.segments[donor].law == "dwell" else index
+
+
 def _rebalanced(axis: Axis, index: int, new_span: float, donor: int | None) -> list[Segment]:
     """Segments with segment `index` at `new_span` and the difference taken from `donor`."""
     segments = list(axis.segments)

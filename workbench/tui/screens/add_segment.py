@@ -5,6 +5,7 @@ from __future__ import annotations
 from typing import Any, Callable
 
 from rich.text import Text
+from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
@@ -13,6 +14,7 @@ from textual.widgets import Input, Label, Select, Static
 from motionlaws import law_ids
 
 from ...editing import EditError, parse_number
+from .field_select import FieldSelect
 from .model_dialog import ModelDialog
 
 AddAttempt = Callable[[str, float, float | None, int], Any]
@@ -40,7 +42,7 @@ class AddSegmentDialog(ModelDialog):
             yield Label(Text(self.title_text), classes="dialog-title")
             with Horizontal(classes="field"):
                 yield Label(Text("law"), classes="field-label")
-                yield Select([(law, law) for law in law_ids()], value="dwell", allow_blank=False, compact=True, id="law")
+                yield FieldSelect([(law, law) for law in law_ids()], value="dwell", allow_blank=False, compact=True, id="law")
             with Horizontal(classes="field"):
                 yield Label(Text("span [deg]"), classes="field-label")
                 yield Input("30", id="span", select_on_focus=True, compact=True)
@@ -49,9 +51,9 @@ class AddSegmentDialog(ModelDialog):
                 yield Input(f"{self.position:g}", id="to", select_on_focus=True, compact=True)
             with Horizontal(classes="field"):
                 yield Label(Text("span from"), classes="field-label")
-                yield Select(self.donors, value=self.donor, allow_blank=False, compact=True, id="donor")
+                yield FieldSelect(self.donors, value=self.donor, allow_blank=False, compact=True, id="donor")
             yield Static("", id="feedback")
-            yield Label(Text("tab: next field   enter: add   esc: cancel"), classes="dialog-hint")
+            yield Label(Text("tab: next field   ↓: a list   enter: add   esc: cancel"), classes="dialog-hint")
 
     def on_mount(self) -> None:
         self.query_one("#law", Select).focus()
@@ -83,7 +85,9 @@ class AddSegmentDialog(ModelDialog):
     def on_select_changed(self, event: Select.Changed) -> None:
         self._check()
 
-    def on_input_submitted(self, event: Input.Submitted) -> None:
+    @on(Input.Submitted)
+    @on(FieldSelect.Submitted)
+    def submitted(self, event: Input.Submitted | FieldSelect.Submitted) -> None:
         event.stop()
         result = self._check()
         if result is None:

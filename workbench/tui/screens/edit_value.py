@@ -13,12 +13,14 @@ from __future__ import annotations
 from typing import Any, Callable
 
 from rich.text import Text
+from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
 from textual.widgets import Input, Label, Select, Static
 
 from ...editing import EditError
+from .field_select import FieldSelect
 from .model_dialog import ModelDialog
 
 Attempt = Callable[[str, Any], Any]
@@ -63,7 +65,7 @@ class EditDialog(ModelDialog):
             yield Input(self.value, id="value", select_on_focus=True, compact=True)
             if self.choices:
                 yield Label(Text(self.choice_prompt))
-                yield Select(self.choices, value=self.choice, allow_blank=False, compact=True, id="choice")
+                yield FieldSelect(self.choices, value=self.choice, allow_blank=False, compact=True, id="choice")
             yield Static("", id="feedback")
             yield Label(Text(self.hint or "enter: apply   esc: cancel"), classes="dialog-hint")
 
@@ -94,7 +96,9 @@ class EditDialog(ModelDialog):
     def on_select_changed(self, event: Select.Changed) -> None:
         self._check()
 
-    def on_input_submitted(self, event: Input.Submitted) -> None:
+    @on(Input.Submitted)
+    @on(FieldSelect.Submitted)
+    def submitted(self, event: Input.Submitted | FieldSelect.Submitted) -> None:
         event.stop()
         result = self._check()
         if result is not None:

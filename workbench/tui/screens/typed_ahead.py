@@ -21,9 +21,11 @@ from textual.screen import ModalScreen
 from textual.widget import Widget
 from textual.widgets import DataTable, Input
 
+from .field_select import FieldSelect
+
 FOCUS_KEYS = {"tab": "focus_next", "shift+tab": "focus_previous"}  # moved here, not by the field
 HAND_WAIT_S = 0.3  # the longest a key in hand holds back the next (a widget on its way was removed)
-SUBMITTING = (Input, DataTable)  # fields whose Enter closes the dialog (`dismiss`) or is refused (`stay`)
+SUBMITTING = (Input, DataTable, FieldSelect)  # fields whose Enter closes the dialog (`dismiss`) or is refused (`stay`)
 
 
 class FieldDialog(ModalScreen):

@@ -236,8 +236,7 @@ def limits_change(before, after) -> str:
 def add_dialog(project: Project, axis_name: str, index: int) -> tuple[ModelDialog, Note]:
     axis = project.axis(axis_name)
     position = segment_ends(axis)[index][1]
-    donor = editing.default_donor(axis, index)
-    donor = index if donor is None else donor
+    donor = editing.add_donor(axis, index)
 
     def attempt(law, span, to, donor_index):
         return editing.insert_segment(project, axis_name, index, law, span, to, donor_index)
