@@ -182,7 +182,10 @@ def test_unknown_cam_and_missing_format_are_exit_2(tmp_path, capsys):
     code, out, err = profile(capsys, PRESS, "--cam", "nope", "--format", "svg")
     assert code == 2 and out == "" and 'key "--cam"' in err and "stamp-cam" in err and "Traceback" not in err
     code, _, err = profile(capsys, PRESS, "--cam", "stamp-cam", "--out", str(tmp_path / "cam.txt"))
-    assert code == 2 and 'key "--format"' in err and not (tmp_path / "cam.txt").exists()
+    assert code == 2 and not (tmp_path / "cam.txt").exists()
+    assert err.startswith("camwright profile: --out ") and "txt is not a format it writes (csv, dxf, svg)" in err
+    code, _, err = profile(capsys, PRESS, "--cam", "stamp-cam")
+    assert code == 2 and err.startswith("camwright profile: --format is missing") and "Traceback" not in err
 
 
 def test_writes_are_atomic_and_replace(tmp_path, capsys):

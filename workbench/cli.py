@@ -26,6 +26,15 @@ from .sections import CHECK_SECTIONS, TABLE_NAMES, TABLE_SOURCES
 
 EXIT_OK, EXIT_OVER, EXIT_INVALID = 0, 1, 2
 
+
+class UsageError(Exception):
+    """A command line that cannot be carried out as given (exit 2, one message naming the option)."""
+
+    def __init__(self, command: str, message: str):
+        super().__init__(message)
+        self.message = f"camwright {command}: {message}"
+
+
 CAUTION = (
     "Kinematic results alone do not make a machine safe: verify with the drive maker's data, "
     "forces, fatigue, guarding and a risk assessment under the machinery-safety rules that apply "
@@ -196,7 +205,7 @@ def main(argv: list[str] | None = None) -> int:
             err.print(f"camwright: unexpected arguments {' '.join(argv[1:])!r}; see camwright --help")
             return EXIT_INVALID
         return open_workbench(argv[0] if argv else None, out, err)
-    except ProjectError as exc:
+    except (ProjectError, UsageError) as exc:
         err.print(exc.message, markup=False, highlight=False)
         return EXIT_INVALID
     except OSError as exc:

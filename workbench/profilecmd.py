@@ -20,7 +20,7 @@ from solver.cam import DEFAULT_POINTS, MIN_POINTS
 
 from .camexport import FORMATS, profile_csv, profile_dxf, profile_svg, uncuttable, verdict_lines
 from .camfile import cam_specs, find_cam, study_cam
-from .cli import CAUTION, EXIT_OK, EXIT_OVER, command
+from .cli import CAUTION, EXIT_OK, EXIT_OVER, UsageError, command
 from .projectfile import ProjectError, load_project, write_atomic
 
 MAX_POINTS = 360_000  # 0.001° of cam angle: finer than any cam is cut
@@ -53,8 +53,11 @@ def _format(args) -> str:
     suffix = Path(args.out).suffix.lower().lstrip(".") if args.out else ""
     if suffix in FORMATS:
         return suffix
-    raise ProjectError(args.file, None, "--format",
-                       "is missing: give --format csv, dxf or svg, or an --out path ending in one of them")
+    known = ", ".join(FORMATS)
+    if args.out:
+        raise UsageError("profile", f"--out {args.out}: {suffix or 'no ending'} is not a format it writes "
+                                    f"({known}); give --format, or an --out path ending in one of them")
+    raise UsageError("profile", f"--format is missing: give --format {known}, or an --out path ending in one")
 
 
 def describe(project, spec) -> tuple[str, str]:
