@@ -13,6 +13,8 @@ from .limits import (
     CURVATURE_RATIO_RANGE,
     OSCILLATING_PRESSURE_ANGLE,
     OSCILLATING_PRESSURE_ANGLE_RANGE,
+    PIVOT_CLEARANCE,
+    PIVOT_TOUCH,
     TRANSLATING_PRESSURE_ANGLE,
     CamCheck,
     CamLimits,
@@ -31,7 +33,8 @@ FOLLOWERS = {cls.type_id: cls for cls in (TranslatingRoller, TranslatingFlat, Os
 
 __all__ = [
     "CURVATURE_RATIO", "CURVATURE_RATIO_RANGE", "DEFAULT_POINTS", "FOLLOWERS", "MIN_POINTS", "OSCILLATING_PRESSURE_ANGLE",
-    "OSCILLATING_PRESSURE_ANGLE_RANGE", "TRANSLATING_PRESSURE_ANGLE",
+    "OSCILLATING_PRESSURE_ANGLE_RANGE", "PIVOT_CLEARANCE", "PIVOT_TOUCH",
+    "TRANSLATING_PRESSURE_ANGLE",
     "Cam", "CamAnalysis", "CamCheck", "CamGeometryError", "CamLimits", "CamMotion", "CamPoints",
     "CamVerdict", "CurveRadii", "Extreme", "FaceUse", "FlatFollower", "Follower", "Interval",
     "OscillatingFlat", "OscillatingRoller", "RollerFollower", "SizeResult", "TranslatingFlat",

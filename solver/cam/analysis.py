@@ -10,6 +10,7 @@ from .errors import CamGeometryError
 from .extremes import TWO_PI, Extreme, Interval, refine_maxima, regions_where
 from .followers import RollerFollower
 from .geometry import Cam, CamPoints, cam_points
+from .oscillating import OscillatingFlat, OscillatingRoller
 
 DEFAULT_POINTS = 3600  # 0.1° of cam angle: fine enough to draw and export
 MIN_POINTS = 36  # fewer than this cannot describe a turn
@@ -64,6 +65,14 @@ class CamAnalysis:
     corners: cam angles (rad) where ds/dθ jumps — the follower meets a
     corner of the cam there (infinite acceleration), and the outline has a
     step that no smooth profile closes.
+
+    The cam's extent: outline_radius (grid array, m) is the distance of each
+    profile point from the cam centre — the outline the follower touches
+    (for a roller the profile, not the pitch curve); largest_radius its
+    true maximum over the turn, at the cam angle where the follower touches
+    it; pivot_clearance (oscillating followers, else None) is
+    pivot_distance − largest_radius, at the same cam angle: ≤ 0 puts the
+    pivot on or inside the disc the turning cam sweeps.
     """
 
     cam: Cam
@@ -85,6 +94,9 @@ class CamAnalysis:
     undercut: tuple[Interval, ...]
     cusp: tuple[Interval, ...]
     corners: tuple[float, ...] = ()
+    outline_radius: np.ndarray | None = None
+    largest_radius: Extreme | None = None
+    pivot_clearance: Extreme | None = None
 
     @property
     def follower(self):
@@ -98,6 +110,18 @@ class CamAnalysis:
 
 def _xy(z: np.ndarray) -> np.ndarray:
     return np.column_stack((z.real, z.imag))
+
+
+def _outline_radius(p: CamPoints) -> np.ndarray:
+    """Distance of each profile point from the cam centre, m."""
+    return np.abs(p.profile)
+
+
+def pivot_clearance(follower, largest: Extreme) -> Extreme | None:
+    """pivot_distance − the outline's largest radius (m, at its cam angle); None without a pivot."""
+    if not isinstance(follower, (OscillatingRoller, OscillatingFlat)):
+        return None
+    return Extreme(follower.pivot_distance - largest.value, largest.at)
 
 
 def _check_layout(cam: Cam, pts: CamPoints, closing: CamPoints) -> None:
@@ -156,18 +180,19 @@ def analyse(cam: Cam, points: int = DEFAULT_POINTS) -> CamAnalysis:
     pitch_radii = None
     pitch_radius = None
     phi = np.abs(pts.pressure_angle)
+    reach = _outline_radius(pts)
     if isinstance(cam.follower, RollerFollower):
         r = cam.follower.roller_radius
         kappa = pts.pitch_curvature
         hollow_anywhere = kappa.min() < 0
-        getters = [lambda p: np.abs(p.pressure_angle), lambda p: p.pitch_curvature]
-        values = [phi, kappa]
+        getters = [lambda p: np.abs(p.pressure_angle), _outline_radius, lambda p: p.pitch_curvature]
+        values = [phi, reach, kappa]
         if hollow_anywhere:
             getters.append(lambda p: -p.pitch_curvature)
             values.append(-kappa)
         found = refine_maxima(evaluate, getters, theta, values, bps)
-        max_phi, convex = found[0], found[1]
-        concave = Extreme(1.0 / found[2].value, found[2].at) if hollow_anywhere else None
+        max_phi, largest, convex = found[0], found[1], found[2]
+        concave = Extreme(1.0 / found[3].value, found[3].at) if hollow_anywhere else None
         pitch_radii = CurveRadii(Extreme(1.0 / convex.value, convex.at), concave)
         profile_radii = CurveRadii(
             Extreme(1.0 / convex.value - r, convex.at),
@@ -183,11 +208,13 @@ def analyse(cam: Cam, points: int = DEFAULT_POINTS) -> CamAnalysis:
         rho, where = pts.profile_radius, pts.face_position
         getters = [
             lambda p: np.abs(p.pressure_angle),
+            _outline_radius,
             lambda p: -p.profile_radius,
             lambda p: -p.face_position,
             lambda p: p.face_position,
         ]
-        max_phi, low, face_lo, face_hi = refine_maxima(evaluate, getters, theta, [phi, -rho, -where, where], bps)
+        values = [phi, reach, -rho, -where, where]
+        max_phi, largest, low, face_lo, face_hi = refine_maxima(evaluate, getters, theta, values, bps)
         profile_radii = CurveRadii(Extreme(-low.value, low.at), None)
         cusp = regions_where(evaluate, lambda p: -p.profile_radius, theta, -rho)
         if not cusp and low.value >= 0.0:
@@ -214,4 +241,7 @@ def analyse(cam: Cam, points: int = DEFAULT_POINTS) -> CamAnalysis:
         undercut=undercut,
         cusp=cusp,
         corners=corners,
+        outline_radius=reach,
+        largest_radius=largest,
+        pivot_clearance=pivot_clearance(cam.follower, largest),
     )

@@ -5,7 +5,10 @@ pressure angle ≤ 30° for translating roller followers and ≤ 35–45° for
 oscillating ones; the smallest convex radius of curvature of the pitch curve
 at least 2–3 × the roller radius.  Undercut (roller radius ≥ convex pitch
 radius), cusps (flat-face profile radius ≤ 0) and corners (a jump in
-ds/dθ) fail always: no smooth cam can be cut there.
+ds/dθ) fail always: no smooth cam can be cut there.  An oscillating
+follower's pivot must lie outside the disc its turning cam sweeps (pivot
+distance > the outline's largest radius): a geometric impossibility
+otherwise, not a rule of thumb, so it fails always too.
 """
 
 from __future__ import annotations
@@ -22,6 +25,8 @@ OSCILLATING_PRESSURE_ANGLE_RANGE = (math.radians(35.0), math.radians(45.0))  # c
 OSCILLATING_PRESSURE_ANGLE = OSCILLATING_PRESSURE_ANGLE_RANGE[0]  # the cautious end of the range
 CURVATURE_RATIO_RANGE = (2.0, 3.0)  # common practice: convex pitch radius / roller radius
 CURVATURE_RATIO = CURVATURE_RATIO_RANGE[0]  # the least margin common practice accepts
+PIVOT_CLEARANCE = 0.0  # m: at or below this the turning cam reaches the pivot (geometry, not a rule)
+PIVOT_TOUCH = 1e-9  # relative to the layout size: a clearance within rounding of zero is a pivot on the outline
 
 
 @dataclass(frozen=True)
@@ -51,11 +56,14 @@ class CamCheck:
 
     quantity: "pressure_angle" (rad), "curvature_ratio" (–), "min_radius" (m),
     "undercut" (value: smallest convex pitch radius, limit: roller radius, m),
-    "cusp" (value: smallest profile radius, limit 0, m), "face_width"
+    "cusp" (value: smallest profile radius, limit 0, m), "pivot_clearance"
+    (oscillating followers; value: pivot distance − largest outline radius,
+    limit 0, m; at: where the follower touches that radius), "face_width"
     (value: width the contact needs about the line of travel, m) or
     "corner" (value: number of cam angles where ds/dθ jumps, limit 0; at:
     the first of them).
-    used: share of the limit taken (None for cusp); ok: within the limit.
+    used: share of the limit taken (None for cusp, corner and pivot_clearance);
+    ok: within the limit.
     at: cam angle (rad) where the value occurs.
     """
 
@@ -95,6 +103,10 @@ def check_cam(analysis: CamAnalysis, limits: CamLimits | None = None) -> CamVerd
     follower = analysis.follower
     limits = common_practice_limits(follower) if limits is None else limits
     checks = []
+    clearance = analysis.pivot_clearance
+    if clearance is not None:
+        ok = clearance.value > PIVOT_CLEARANCE + PIVOT_TOUCH * analysis.size
+        checks.append(CamCheck("pivot_clearance", clearance.value, PIVOT_CLEARANCE, clearance.at, None, ok))
     if limits.pressure_angle is not None:
         peak = analysis.max_pressure_angle
         used = _ratio(peak.value, limits.pressure_angle)
