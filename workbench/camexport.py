@@ -232,6 +232,9 @@ def verdict_lines(study: CamStudy) -> list[str]:
             out.append("no cusp" if c.ok else f"CUSP near {at}")
         elif q == "face_width":
             out.append(f"face width needed {c.value * MM_PER_M:.1f} mm of {c.limit * MM_PER_M:g} mm: {state}")
+        elif q == "pivot_clearance":
+            out.append(f"pivot clear of the cam by {c.value * MM_PER_M:.1f} mm" if c.ok else
+                       f"PIVOT NOT CLEAR OF THE CAM: clearance {c.value * MM_PER_M:.1f} mm (largest radius at {at})")
         elif q == "min_radius":
             out.append(f"smallest convex profile radius {c.value * MM_PER_M:.1f} mm "
                        f"(≥ {c.limit * MM_PER_M:g} mm): {state}")

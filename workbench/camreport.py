@@ -9,6 +9,7 @@ exit code 1.
 from __future__ import annotations
 
 import math
+import textwrap
 from dataclasses import dataclass
 
 import numpy as np
@@ -137,8 +138,8 @@ def loads_json(loads: CamLoads) -> dict:
 
 # --- geometry JSON -----------------------------------------------------------
 
-CHECK_UNITS = {"pressure_angle": "deg", "undercut": "mm", "curvature_ratio": "", "cusp": "mm",
-               "face_width": "mm", "min_radius": "mm", "corner": "count"}
+CHECK_UNITS = {"pivot_clearance": "mm", "pressure_angle": "deg", "undercut": "mm", "curvature_ratio": "",
+               "cusp": "mm", "face_width": "mm", "min_radius": "mm", "corner": "count"}
 
 
 def _extreme(e, length=True):
@@ -212,6 +213,8 @@ def cam_json(study: CamStudy, loads: CamLoads | None) -> dict:
         "undercut": {"found": bool(a.undercut), "regions": _regions(a.undercut)} if roller else None,
         "cusp": None if roller else {"found": bool(a.cusp), "regions": _regions(a.cusp)},
         "corners": [deg(c) for c in a.corners],
+        "largest_radius": _extreme(a.largest_radius),
+        "pivot_clearance": _extreme(a.pivot_clearance),
         "face": face,
         "limits": limits_json(study),
         "checks": [check_json(c) for c in study.verdict.checks],
@@ -222,6 +225,7 @@ def cam_json(study: CamStudy, loads: CamLoads | None) -> dict:
 # --- Rich --------------------------------------------------------------------
 
 CHECK_LABELS = {
+    "pivot_clearance": "pivot clearance [mm]",
     "pressure_angle": "pressure angle [deg]",
     "undercut": "pitch radius [mm]",
     "curvature_ratio": "curvature ratio",
@@ -230,12 +234,13 @@ CHECK_LABELS = {
     "min_radius": "profile radius [mm]",
     "corner": "corners",
 }
-FAIL_WORDS = {"undercut": "UNDERCUT", "cusp": "CUSP", "corner": "CORNER", "curvature_ratio": "TOO SHARP",
-              "min_radius": "TOO SHARP"}
-PASS_WORDS = {"undercut": "no undercut", "cusp": "no cusp"}
+FAIL_WORDS = {"pivot_clearance": "IN CAM", "undercut": "UNDERCUT", "cusp": "CUSP", "corner": "CORNER",
+              "curvature_ratio": "TOO SHARP", "min_radius": "TOO SHARP"}
+PASS_WORDS = {"pivot_clearance": "clear", "undercut": "no undercut", "cusp": "no cusp"}
 DEFAULT_MARK = "*"  # marks a limit that is the common-practice default
 DEFAULT_NOTE = f"  {DEFAULT_MARK} common practice: a rule of thumb, used where the file sets no limit"
 NEAR_ZERO = 1e-9  # a displayed value this small (in its unit) is shown as 0
+NOTE_WIDTH = 78  # a long warning wraps within an 80-column terminal, indented under its "!"
 
 
 def _num(value: float, digits: int = 4) -> str:
@@ -252,6 +257,8 @@ def _limit_text(study: CamStudy, c) -> str:
     if q in ("curvature_ratio", "min_radius"):
         return f"≥ {_num(limit)}{mark}"
     if q == "cusp":
+        return "> 0"
+    if q == "pivot_clearance":
         return "> 0"
     if q == "face_width":
         return f"≤ {_num(limit)} (face)"
@@ -288,6 +295,18 @@ def _table(columns) -> Table:
     return table
 
 
+def pivot_words(study: CamStudy) -> str:
+    """The pivot against the cam in a sentence: how far clear, or that the cam reaches it (the verdict's word)."""
+    a = study.analysis
+    c, top = a.pivot_clearance, a.largest_radius
+    d = mm(study.cam.follower.pivot_distance)
+    where = f"largest cam radius {_num(mm(top.value))} mm (follower there at {_num(deg(top.at), 5)}°)"
+    if study.verdict.get("pivot_clearance").ok:
+        return f"pivot clear of the cam by {_num(mm(c.value))} mm: {where}, pivot at {_num(d)} mm"
+    return (f"pivot not clear of the cam (clearance {_num(mm(c.value))} mm): the {where} reaches the pivot "
+            f"at {_num(d)} mm, so the turning cam would strike it; move the pivot out or make the cam smaller")
+
+
 def cam_table(study: CamStudy) -> Group:
     """One cam: checks against limits in words, then the curvature and any trouble spots."""
     spec, a = study.spec, study.analysis
@@ -319,6 +338,10 @@ def cam_table(study: CamStudy) -> Group:
     if a.cusp:
         lines.append(Text(f"  ! cusp at {_where(a.cusp)}: the face cannot follow the profile there",
                           style="yellow"))
+    clearance = study.verdict.get("pivot_clearance")
+    if clearance is not None and not clearance.ok:
+        lines.append(Text(textwrap.fill(pivot_words(study), NOTE_WIDTH, initial_indent="  ! ",
+                                        subsequent_indent="    "), style="yellow"))
     for c in a.corners:
         lines.append(Text(f"  ! corner at {_num(deg(c), 5)}°: the axis velocity jumps, the cam has a step",
                           style="yellow"))

@@ -27,6 +27,7 @@ COLUMN_GAP = (0, 1, 0, 0)  # one space between columns: the table fits beside th
 WIDE = 76  # from this width on, the table shows the share of each limit as a bar
 LIMIT_HEADER = "limit (L)"  # with the Cam view's key that changes the limits (not in the footer at 80 columns)
 LABELS = {
+    "pivot_clearance": "pivot clearance",
     "pressure_angle": "pressure angle",
     "undercut": "undercut",
     "curvature_ratio": "curvature ratio",
@@ -35,9 +36,9 @@ LABELS = {
     "min_radius": "profile radius",
     "corner": "corners",
 }
-FAIL = {"pressure_angle": "✗ OVER", "undercut": "✗ UNDERCUT", "curvature_ratio": "✗ TOO SHARP",
-        "cusp": "✗ CUSP", "face_width": "✗ TOO NARROW", "min_radius": "✗ TOO SHARP", "corner": "✗ CORNER"}
-PASS = {"undercut": "✓ none", "cusp": "✓ none"}
+FAIL = {"pivot_clearance": "✗ IN CAM", "pressure_angle": "✗ OVER", "undercut": "✗ UNDERCUT",
+        "curvature_ratio": "✗ TOO SHARP", "cusp": "✗ CUSP", "face_width": "✗ TOO NARROW", "min_radius": "✗ TOO SHARP", "corner": "✗ CORNER"}
+PASS = {"pivot_clearance": "✓ clear", "undercut": "✓ none", "cusp": "✓ none"}
 
 
 def num(value: float) -> str:
@@ -63,7 +64,9 @@ def _row(entry: CamEntry, c) -> dict:
     """One check as the strings the table shows."""
     q, a = c.quantity, entry.study.analysis
     at = angle(c.at)
-    if q == "pressure_angle":
+    if q == "pivot_clearance":  # pivot distance − the outline's largest radius; the cam must pass outside it
+        value, limit = f"{num(c.value * MM)} mm", "> 0 mm"
+    elif q == "pressure_angle":
         value, limit = f"{num(math.degrees(c.value))}°", f"≤ {num(math.degrees(c.limit))}°{_source(entry, q)}"
     elif q == "undercut":  # judged on the least convex pitch radius against the roller radius
         value, limit = f"{num(c.value * MM)} mm", f"> {num(c.limit * MM)} mm roller"
@@ -113,9 +116,14 @@ def show_text(static: Static, text: Text) -> None:
 
 
 def trouble_lines(entry: CamEntry) -> list[str]:
-    """Where the profile cannot be cut, in words (marked × and ◆ in the drawing)."""
+    """Where the profile cannot be cut, in words (marked × and ◆ in the drawing), and a pivot the cam reaches."""
     a = entry.study.analysis
     out = []
+    clearance = entry.study.verdict.get("pivot_clearance")
+    if clearance is not None and not clearance.ok:
+        top = a.largest_radius
+        out.append(f"✗ pivot not clear of the cam: its largest radius {num(top.value * MM)} mm (at "
+                   f"{angle(top.at)}) reaches the pivot at {num(entry.study.cam.follower.pivot_distance * MM)} mm")
     if a.undercut:
         out.append(f"× undercut {stretches(a.undercut)}: the profile loops there")
     if a.cusp:
