@@ -245,3 +245,12 @@ def test_history_undo_redo_and_saved_mark(project):
     assert not h.can_redo
     with pytest.raises(EditError):
         History(project).undo()
+
+
+def test_large_numbers_and_shares_read_the_same_way_beside_their_limits():
+    from workbench.axisreport import fmt, percent
+
+    assert fmt(1_228_518.4) == "1,228,518" and fmt(700_000.0) == "700,000"  # a jerk beside its limit
+    assert fmt(2.5e9) == "2.500e+09" and fmt(1.368e-12) == "1.368e-12"
+    assert percent(1.16) == "116 %" and percent(0.4567, 1) == "45.7 %" and percent(123.4) == "12,340 %"
+    assert percent(6.68e20) == "> 99,999 %"  # a speed typed far too high

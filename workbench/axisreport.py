@@ -65,13 +65,25 @@ def axis_json(report: AxisReport) -> dict:
     }
 
 
+LARGEST_GROUPED = 1e9  # below it a large number is written out, grouped (jerks of 1e6..1e8 mm/s³
+#                        read beside limits such as 700,000); from it on, with an exponent
+MOST_PERCENT = 1e5  # a share of a limit of this many % or more is past reading exactly
+
+
+def percent(used: float, decimals: int = 0) -> str:
+    """A finite share of a limit: "116 %"; "> 99,999 %" beyond that (a speed typed far too high)."""
+    if used * 100 >= MOST_PERCENT:
+        return f"> {MOST_PERCENT - 1:,.0f} %"
+    return f"{used * 100:,.{decimals}f} %"
+
+
 def fmt(value: float | None, digits: int = 4) -> str:
     """A number for people: 4 significant digits, thousands grouped when large."""
     if value is None:
         return "—"
     if value == 0:
         return "0"
-    if abs(value) >= 1e6 or abs(value) < 1e-3:
+    if abs(value) >= LARGEST_GROUPED or abs(value) < 1e-3:
         return f"{value:.{digits - 1}e}"
     if abs(value) >= 10 ** digits:
         return f"{value:,.0f}"
@@ -89,7 +101,7 @@ def verdict_text(used: float) -> Text:
 
 
 def used_text(used: float) -> str:
-    return "∞" if math.isinf(used) else f"{used * 100:.1f} %"
+    return "∞" if math.isinf(used) else percent(used, 1)
 
 
 def axis_table(report: AxisReport) -> Group:

@@ -274,7 +274,7 @@ def _verdict(c) -> Text:
 def _used(c) -> str:
     if c.used is None:
         return "—"
-    return "∞" if math.isinf(c.used) else f"{c.used * 100:.1f} %"
+    return "∞" if math.isinf(c.used) else axisreport.percent(c.used, 1)
 
 
 def _where(intervals) -> str:

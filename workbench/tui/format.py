@@ -11,7 +11,7 @@ import math
 
 from rich.text import Text
 
-from ..axisreport import fmt
+from ..axisreport import fmt, percent
 
 POWER = {"position": "", "velocity": "/s", "acceleration": "/s²", "jerk": "/s³"}
 BAR_WIDTH = 8  # cells of a share-of-limit bar (fits the peaks table in 80 columns)
@@ -32,6 +32,15 @@ def number(value: float | None, unit: str, digits: int = 4) -> str:
     return f"{fmt(value, digits)} {unit}".rstrip()
 
 
+ROUNDING_NOISE = 1e-9  # of a curve's largest value: below it, a value read off the curve is 0
+
+
+def tidy(value: float, scale: float) -> float:
+    """`value` read off a curve whose largest magnitude is `scale`, with rounding noise shown as 0
+    (an acceleration of 1e-12 mm/s² in a dwell)."""
+    return 0.0 if abs(value) <= ROUNDING_NOISE * scale else value
+
+
 def degrees(value: float) -> str:
     """A master angle: "22.5°" (0.1° is finer than any screen shows)."""
     return f"{value:.1f}°" if abs(value - round(value)) > 1e-9 else f"{round(value):d}°"
@@ -46,7 +55,7 @@ def used_bar(used: float, width: int = BAR_WIDTH) -> Text:
     if used > 1.0:
         bar = bar[:-1] + "▶"
     style = OVER_STYLE if used > 1.0 else (WARN_STYLE if used > 0.9 else OK_STYLE)
-    return Text(f"{bar} {used * 100:4.0f} %", style=style, no_wrap=True)
+    return Text(f"{bar} {percent(used):>6}", style=style, no_wrap=True)
 
 
 def verdict(used: float | None) -> Text:
@@ -58,7 +67,11 @@ def verdict(used: float | None) -> Text:
     return Text("✓ within", style=OK_STYLE)
 
 
-def axis_verdict(ok: bool, has_limits: bool) -> Text:
+def axis_verdict(ok: bool, has_limits: bool, short: bool = False) -> Text:
+    """An axis against its limits over the cycle: "✓ all within limits" or "✗ LIMIT EXCEEDED"
+    ("✓ within", "✗ OVER" when `short`, for a column headed "limits")."""
     if not has_limits:
-        return Text("· no limits", style="dim")
-    return Text("✓ all within limits", style=OK_STYLE) if ok else Text("✗ LIMIT EXCEEDED", style=OVER_STYLE)
+        return Text("· none" if short else "· no limits", style="dim")
+    if ok:
+        return Text("✓ within" if short else "✓ all within limits", style=OK_STYLE)
+    return Text("✗ OVER" if short else "✗ LIMIT EXCEEDED", style=OVER_STYLE)

@@ -41,7 +41,7 @@ from ... import editing
 from ...editing import EditError
 from ...projectfile import Project
 from ..compute import AxisResult
-from ..format import axis_verdict, number
+from ..format import OK_STYLE, OVER_STYLE, axis_verdict, number
 from ..messages import Status
 from ..screens.model_dialog import ModelDialog
 from ..widgets.axis_plots import PlotPanel
@@ -214,10 +214,16 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
             ("axis ", "dim"), (f"◂ {axis.name} ▸", "bold"),
             (f" {names.index(axis.name) + 1}/{len(names)} [{axis.unit}]", "dim"),
             (" (, .)" if len(names) > 1 else "", "dim"),
-            ("  machine ", "dim"), number(self.project.speed, "cycles/min"), "  ",
+            "  ", number(self.project.speed, "cycles/min"), "  ",
         )
-        if result is not None:
+        over = [name for name in names if name != axis.name
+                and name in self.results and not self.results[name].report.ok]
+        if result is not None and over and result.report.ok and axis.limits.any:
+            bar.append("✓ within", style=OK_STYLE)  # this axis; not the machine: it is said next
+        elif result is not None:
             bar.append_text(axis_verdict(result.report.ok, axis.limits.any))
+        if over:  # the machine is within its limits only when every axis is
+            bar.append(f"  ✗ {', '.join(over)} OVER", style=OVER_STYLE)
         if not fresh:
             bar.append("  (computing…)", style="dim")
         self.query_one(AxisBar).update(bar, layout=False)  # one line, always

@@ -17,7 +17,7 @@ from rich.text import Text
 from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal, VerticalScroll
+from textual.containers import Horizontal
 from textual.message import Message
 from textual.widgets import Static
 from textual.worker import get_current_worker
@@ -33,6 +33,7 @@ from ..widgets.cam_empty import no_cam_text
 from ..widgets.cam_export import start_export
 from ..widgets.cam_plots import AnglePlot, pressure_angle_plot, radius_plot
 from ..widgets.cam_verdicts import CamVerdicts, angle, show_text
+from ..widgets.view_scroll import ViewScroll
 from . import register_view
 from .cam_edits import reverse_turning, start_limits_edit, turning_text
 from .cam_sizes import sizes_text, start_size_edit
@@ -131,7 +132,7 @@ class CamView(WorkbenchView):
         yield CamBar(id="cam-bar")
         with Horizontal(id="cam-top"):
             yield CamDrawing(id="cam-drawing")
-            with VerticalScroll(id="cam-side", can_focus=False):
+            with ViewScroll(id="cam-side", can_focus=False):
                 yield CamVerdicts(id="cam-verdicts")
                 yield Static(id="cam-readout")
                 yield Static(id="cam-legend")
@@ -139,7 +140,7 @@ class CamView(WorkbenchView):
         with Horizontal(id="cam-plots"):
             yield AnglePlot(id="cam-pressure")
             yield AnglePlot(id="cam-radius")
-        with VerticalScroll(id="cam-empty"):
+        with ViewScroll(id="cam-empty"):
             yield Static(id="cam-empty-text")
 
     # --- state down ---------------------------------------------------------

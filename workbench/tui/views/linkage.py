@@ -21,7 +21,7 @@ This module holds the view's state, layout and painting; its keys are in
 from __future__ import annotations
 
 from textual.app import ComposeResult
-from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.containers import Horizontal, Vertical
 from textual.widgets import Static
 
 from ...linkagefile import LinkageSpec, linkage_specs
@@ -34,6 +34,7 @@ from ..widgets.linkage_layout import VIEW_CSS, arrange
 from ..widgets.linkage_plots import LinkagePlot, output_plot
 from ..widgets.linkage_readout import readout_text
 from ..widgets.linkage_report import BARS, LinkageReport, bar_text, side_rows, table_width
+from ..widgets.view_scroll import ViewScroll
 from . import register_view
 from .base import WorkbenchView
 from .linkage_keys import LINKAGE_BINDINGS, LinkageKeys
@@ -82,7 +83,7 @@ class LinkageView(LinkageKeys, LinkageStudies, WorkbenchView):
         yield LinkageBar(id="lk-bar")
         with Horizontal(id="lk-top"):
             yield LinkageDrawing(id="lk-drawing")
-            with VerticalScroll(id="lk-side", can_focus=False):
+            with ViewScroll(id="lk-side", can_focus=False):
                 with Vertical(id="lk-info"):
                     yield Static(id="lk-readout")
                     yield Static(id="lk-legend", classes="lk-legend")
@@ -91,7 +92,7 @@ class LinkageView(LinkageKeys, LinkageStudies, WorkbenchView):
         with Horizontal(id="lk-plots"):
             yield LinkagePlot(id="lk-position")
             yield LinkagePlot(id="lk-rate")
-        with VerticalScroll(id="lk-empty"):
+        with ViewScroll(id="lk-empty"):
             yield Static(id="lk-empty-text")
 
     # --- state down ---------------------------------------------------------

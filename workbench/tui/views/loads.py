@@ -22,7 +22,7 @@ from rich.text import Text
 from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal, VerticalScroll
+from textual.containers import Horizontal
 from textual.message import Message
 from textual.widgets import Static
 from textual.worker import get_current_worker
@@ -33,6 +33,7 @@ from ..widgets import loads_data
 from ..widgets.cam_plots import AnglePlot
 from ..widgets.cam_verdicts import show_text
 from ..widgets.loads_data import LoadsItem, collect_loads, unshown_parts
+from ..widgets.view_scroll import ViewScroll
 from . import register_view
 from .base import WorkbenchView
 
@@ -181,13 +182,13 @@ class LoadsView(WorkbenchView):
         with Horizontal(id="loads-plots"):
             yield AnglePlot(id="loads-contact")
             yield AnglePlot(id="loads-torque")
-        with VerticalScroll(id="loads-body"):
+        with ViewScroll(id="loads-body"):
             yield FigureTable(id="loads-figures")
             yield Static(id="loads-caution")
             yield Static(id="loads-readout")
             yield Static(id="loads-notes")
             yield Static(id="loads-pending")
-        with VerticalScroll(id="loads-empty"):
+        with ViewScroll(id="loads-empty"):
             yield Static(id="loads-empty-text")
 
     # --- state down ---------------------------------------------------------

@@ -4,11 +4,11 @@ from __future__ import annotations
 
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import VerticalScroll
 
 from ...projectfile import Project
 from ..compute import AxisResult
 from ..widgets.timing_chart import TimingChart, TimingReadout
+from ..widgets.view_scroll import ViewScroll
 from .base import WorkbenchView
 
 COARSE_STEP = 5.0  # deg per left/right
@@ -35,7 +35,7 @@ class TimingView(WorkbenchView):
         """Cursor master angle in deg."""
 
     def compose(self) -> ComposeResult:
-        with VerticalScroll():
+        with ViewScroll():
             yield TimingChart(id="timing-chart")
             yield TimingReadout(id="timing-readout")
 

@@ -17,7 +17,7 @@ from textual.widgets import Static
 
 from solver.kinematics import DEAD_POINT, GROUND, NOT_ASSEMBLED, NOT_DRIVEN, REASONS, SOLVED
 
-from ...axisreport import fmt
+from ...axisreport import fmt, percent
 from ...linkagefile import describe, split_ref
 from ...linkagereport import driver_words
 from ..format import OK_STYLE, OVER_STYLE, WARN_STYLE, degrees, number, unit_of, used_bar, verdict
@@ -262,7 +262,7 @@ def share_cell(used: float | None, share: str) -> Text:
     if share == BARS:
         return used_bar(used)
     style = OVER_STYLE if used > 1.0 else (WARN_STYLE if used > NEAR_LIMIT else OK_STYLE)
-    return Text("∞ %" if math.isinf(used) else f"{used * 100:.0f} %", style=style)
+    return Text("∞ %" if math.isinf(used) else percent(used), style=style)
 
 
 def side_rows(entry: LinkageEntry | None, output: str | None) -> int:

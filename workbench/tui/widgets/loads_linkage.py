@@ -18,6 +18,7 @@ import math
 import numpy as np
 
 from ... import linkageloads_study as study_module
+from ...axisreport import percent
 from ...linkagefile import linkage_specs
 from ...linkageloads_report import gearing_words
 from ...projectfile import Project
@@ -57,7 +58,7 @@ def _closed(theta_rad: np.ndarray, values: np.ndarray, periodic: bool) -> tuple[
 def _share(check) -> str:
     """A servo check in words: "✓ 41 % of 0.5 N·m"."""
     unit = "rpm" if check.quantity == "speed" else "N·m"
-    return f"{'✓' if check.ok else '✗'} {check.used * 100:.0f} % of {num(check.limit)} {unit}"
+    return f"{'✓' if check.ok else '✗'} {percent(check.used)} of {num(check.limit)} {unit}"
 
 
 def torque_plot(d) -> PlotSpec:

@@ -17,7 +17,7 @@ from textual.widgets import Static
 from ...editing import segment_ends
 from ...projectfile import Project
 from ..compute import AxisResult
-from ..format import degrees, number, unit_of
+from ..format import axis_verdict, degrees, number, tidy, unit_of
 
 NAME_WIDTH = 14  # columns for the axis name at the left of each band
 TRACE_ROWS = 2  # rows of position trace per axis (16 levels in eighth-blocks)
@@ -144,15 +144,16 @@ class TimingChart(Widget, can_focus=True):
 
 
 class TimingReadout(Static):
-    """Every axis at the cursor's master angle: segment, position, velocity, acceleration."""
+    """Every axis at the cursor's master angle: segment, position, velocity, acceleration, and
+    whether the axis keeps within its limits over the cycle."""
 
     DEFAULT_CSS = "TimingReadout { height: auto; }"
 
     def show(self, project: Project | None, results: dict[str, AxisResult], angle: float) -> None:
         table = Table(box=None, padding=(0, 1), show_edge=False, header_style="bold",
                       title=Text(f"at master {degrees(angle)}", style="bold"), title_justify="left")
-        for header in ("axis", "segment", "position", "velocity", "acceleration"):
-            table.add_column(header, justify="left" if header in ("axis", "segment") else "right")
+        for header in ("axis", "segment", "position", "velocity", "acceleration", "limits"):
+            table.add_column(header, justify="left" if header in ("axis", "segment", "limits") else "right")
         if project is not None:
             for axis in project.axes:
                 result = results.get(axis.name)
@@ -162,10 +163,11 @@ class TimingReadout(Static):
                 k = int(np.argmin(np.abs(theta - angle)))
                 seg = int(np.searchsorted(np.array(result.bounds), angle, side="right"))
                 law = result.report.segments[seg].law
-                table.add_row(
-                    axis.name, f"{seg + 1} {law}",
-                    number(float(result.curves.position[k]), axis.unit),
-                    number(float(result.curves.velocity[k]), unit_of("velocity", axis.unit)),
-                    number(float(result.curves.acceleration[k]), unit_of("acceleration", axis.unit)),
-                )
+                curves = result.curves
+                row = [number(tidy(float(values[k]), float(np.max(np.abs(values)))),
+                              unit_of(quantity, axis.unit))
+                       for quantity, values in (("position", curves.position), ("velocity", curves.velocity),
+                                                ("acceleration", curves.acceleration))]
+                verdict = axis_verdict(result.report.ok, axis.limits.any, short=True)  # over the cycle
+                table.add_row(axis.name, f"{seg + 1} {law}", *row, verdict)
         self.update(table)
