@@ -124,10 +124,11 @@ async def test_edit_span_in_place_changes_peaks(project_file):
         assert j < j_return
         assert peaks(app)["jerk"]["value"] == f"{j_return:,.0f} mm/s³"
         assert peaks(app)["jerk"]["verdict"] == "✓ within"
-        assert "span of segment 1" in app.status_text
+        assert app.status_text == "span of segment 1: 90° → 120° (segment 2 gave 30°)"
         # undo and redo of the edit made in place
         await pilot.press("ctrl+z")
         await settle(pilot)
+        assert app.status_text == "undid: span of segment 1: 90° → 120° (segment 2 gave 30°)"
         assert [s.span for s in app.project.axis(LID).segments] == [90.0, 150.0, 120.0]
         assert not app.history.modified
         assert str(table.get_cell_at((0, 2))) == "90"
@@ -191,6 +192,7 @@ async def test_end_position_and_time_are_typed_in_place(project_file):
         await pilot.press("enter")
         await settle(pilot)
         assert app.project.axis(LID).segments[0].to == 45.0
+        assert app.status_text == "end position of segment 1: 40 → 45 mm"
         v, _ = cycloidal_peaks(45.0, 90.0, 120.0)  # 720 mm/s
         assert peaks(app)["velocity"]["value"] == f"{v:.0f} mm/s"
         editor = await open_cell(pilot, 0, 4)  # segment 1's time, 125 ms at 120 cycles/min
@@ -200,6 +202,7 @@ async def test_end_position_and_time_are_typed_in_place(project_file):
         await settle(pilot)
         # 100 ms of a 500 ms cycle (120 cycles/min) is 72°; the dwell after it gives the 18°
         assert [s.span for s in app.project.axis(LID).segments] == [72.0, 168.0, 120.0]
+        assert app.status_text == "time of segment 1: 125 → 100 ms (segment 2 took 18°)"
         assert str(app.query_one(SegmentTable).get_cell_at((0, 4))) == "100.0"
         await pilot.press("ctrl+z", "ctrl+z")
         await settle(pilot)
@@ -685,6 +688,21 @@ async def test_axis_switch_and_timing_view(project_file):
         assert "no [[linkage]] table" in message and "presets/slider-crank.toml" in message
 
 
+async def test_the_timing_readout_shows_a_true_zero_as_0(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("2", *["right"] * 9)  # master 45°: halfway through the lid's cycloidal rise
+        await settle(pilot)
+        readout = app.query_one("#timing-readout")
+        velocity, acceleration = ([str(c) for c in readout.content.columns[i].cells] for i in (3, 4))
+        # cycloidal rise at its middle: v = Cv·h/T with Cv = 2 (handbook value, from memory) and
+        # a = 0 (a = 2πh/T² sin 2πx, x = 1/2); h = 40 mm, T = (90/360)(60/120) s
+        t = 90.0 / 360.0 * 60.0 / 120.0
+        assert velocity[0] == f"{2.0 * 40.0 / t:.4g} mm/s"
+        assert acceleration[0] == "0 mm/s²"
+
+
 async def test_a_burst_of_edits_ends_with_the_numbers_of_the_last(project_file):
     from workbench import editing
     from workbench.tui.messages import ProjectEdited
@@ -886,3 +904,19 @@ async def test_no_key_jumps_its_turn(preset, keys, check):
         await settle(pilot)
         await type_in_a_bunch(pilot, *keys)
         assert app.is_running and check(app)
+
+
+@pytest.mark.parametrize("preset, key, view_id", [
+    ("tray-lidder", "2", "timing"), ("slider-crank", "3", "linkage"), ("cam-press", "4", "cam"),
+    ("cam-press", "5", "loads"),
+])
+async def test_the_footer_and_help_show_a_views_step_keys_as_its_own(preset, key, view_id):
+    app = Workbench(load_project(preset_path(preset)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press(key)
+        await settle(pilot)
+        view = app.query_one(f"#{view_id}")
+        active = app.screen.active_bindings
+        # ← → step the view (not a scroll around its focused widget), and that is what is shown
+        assert all(active[k].node is view and active[k].binding.action.startswith("step") for k in ("left", "right"))

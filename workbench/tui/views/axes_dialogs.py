@@ -13,6 +13,7 @@ from typing import Callable
 from motionlaws import Limits, analyse
 
 from ... import editing
+from ...axisreport import percent
 from ...editing import EditError, parse_number, segment_ends
 from ...projectfile import Project
 from ..format import number, unit_of
@@ -68,7 +69,7 @@ def most_used(project: Project, axis_names: list[str]) -> str:
     if worst is None:
         return ""
     name, check = worst
-    share = "∞" if check.used == float("inf") else f"{check.used * 100:.0f} %"
+    share = "∞" if check.used == float("inf") else percent(check.used)
     if not ok:
         state = "LIMIT EXCEEDED"
     elif len(axis_names) == 1:
@@ -108,7 +109,22 @@ def _typed(text: str, shown: str, exact: float, what: str, **rules) -> float:
     return exact if text.strip() == shown else value
 
 
-def span_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, str]:
+def span_note(before: Project, after: Project, axis_name: str, index: int, what: str) -> str:
+    """"span of segment 1: 90° → 100° (segment 2 gave 10°)" — what a span or time edit did."""
+    old, new = before.axis(axis_name).segments, after.axis(axis_name).segments
+    if what == "time":
+        ms = 60_000.0 / before.speed / 360.0
+        text = f"time of segment {index + 1}: {old[index].span * ms:.4g} → {new[index].span * ms:.4g} ms"
+    else:
+        text = f"span of segment {index + 1}: {old[index].span:g}° → {new[index].span:g}°"
+    for j, (a, b) in enumerate(zip(old, new)):
+        if j != index and a.span != b.span:
+            verb = "gave" if b.span < a.span else "took"
+            text += f" (segment {j + 1} {verb} {abs(b.span - a.span):g}°)"
+    return text
+
+
+def span_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, Note]:
     axis = project.axis(axis_name)
     seg = axis.segments[index]
     shown = f"{seg.span:g}"
@@ -124,10 +140,10 @@ def span_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, s
         choices=tuple(_choices(project, axis_name, index)), choice_prompt=DONOR_PROMPT,
         choice=editing.default_donor(axis, index),
     )
-    return edit, f"span of segment {index + 1}"
+    return edit, lambda p: span_note(project, p, axis_name, index, "span")
 
 
-def time_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, str]:
+def time_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, Note]:
     axis = project.axis(axis_name)
     seg = axis.segments[index]
     ms = seg.span / 360.0 * 60_000.0 / project.speed
@@ -144,10 +160,10 @@ def time_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, s
         choices=tuple(_choices(project, axis_name, index)), choice_prompt=DONOR_PROMPT,
         choice=editing.default_donor(axis, index),
     )
-    return edit, f"time of segment {index + 1}"
+    return edit, lambda p: span_note(project, p, axis_name, index, "time")
 
 
-def end_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, str]:
+def end_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, Note]:
     axis = project.axis(axis_name)
     seg = axis.segments[index]
     start, end = segment_ends(axis)[index]
@@ -166,7 +182,8 @@ def end_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, st
         f"at the axis start{' + index' if axis.index else ''}",
         shown, attempt, lambda p: describe(project, p, axis_name),
     )
-    return edit, f"end position of segment {index + 1}"
+    return edit, lambda p: (f"end position of segment {index + 1}: {end:g} → "
+                            f"{segment_ends(p.axis(axis_name))[index][1]:g} {axis.unit}")
 
 
 def law_dialog(project: Project, axis_name: str, index: int) -> tuple[ModelDialog, Note]:

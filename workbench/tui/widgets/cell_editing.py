@@ -45,8 +45,9 @@ class CellsInPlace:
     def _init_cells(self) -> None:
         self.editor: CellEditor | None = None
         """The in-place editor of the table's typed cells."""
-        self._edit_note = ""
-        """The note of the edit open in place (for undo and the status line)."""
+        self._edit_note: str | Callable[[object], str] = ""
+        """The note of the edit open in place (for undo and the status line), or how to word it
+        from the edited project."""
         self._footer_stale = False
         """True when the footer still shows the editor's keys after it closed with an edit."""
         self._editing_at = None
@@ -66,7 +67,7 @@ class CellsInPlace:
         """True while a cell of the table is being typed over."""
         return self.editor is not None and self.editor.is_open
 
-    def _edit_in_place(self, build: Callable[[], tuple[CellEdit, str]]) -> None:
+    def _edit_in_place(self, build: Callable[[], tuple[CellEdit, object]]) -> None:
         if self.project is None or self.axis_name is None:
             return
         try:
@@ -124,7 +125,8 @@ class CellsInPlace:
         self.editor.close()
         self._footer_stale = True
         self._hold()  # the editor closing and the edit reach the screen together
-        self.app.apply_edit(project, self._edit_note)
+        note = self._edit_note
+        self.app.apply_edit(project, note if isinstance(note, str) else note(project))
 
     def action_cancel_edit(self) -> None:
         self._close_editor()
