@@ -533,6 +533,11 @@ async def test_a_dead_point_is_shown_where_it_stops():
         assert drawing.joint_cells["B"] == drawing.raster.cell_of(tip + b * along)
         assert "✗ it stops here" in readout(app) and "grow without bound" in readout(app)
         assert rows(app) == {}  # no peaks for a cycle that does not solve
+        # the swing's range so far reaches the rocker's angle at the stop: the angle of B − O4 with
+        # coupler and rocker in line (the construction above)
+        swing_at_stop = math.degrees(np.angle(tip + b * along - d))
+        reached = app.query_one("#lk-position", LinkagePlot).spec.parts[1]
+        assert reached.endswith(f" … {swing_at_stop:.4g} deg so far"), reached
         await pilot.press("right")
         await settle(pilot)
         assert view(app).angle == pytest.approx(limit, abs=1e-3) and "cannot be stepped past" in app.status_text

@@ -48,7 +48,10 @@ def output_plot(entry: LinkageEntry, output: str, quantity: str) -> PlotSpec | N
     trace = entry.traces.get(output)
     if trace is None:
         return None
-    theta, values = trace.plotted(quantity)
+    if quantity == "position":  # up to where it stops: a position stays finite at a dead point
+        theta, values = trace.theta, trace.values[quantity]
+    else:  # the grid only: rates run away at a dead point and would flatten the rest
+        theta, values = trace.plotted(quantity)
     unit = unit_of(quantity, trace.unit)
     name = output if quantity == "position" else quantity
     parts = [f"{name} [{unit}]"]
