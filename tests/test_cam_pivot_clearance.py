@@ -55,7 +55,7 @@ from workbench.projectfile import load_project
 from workbench.tui.screens.confirm import ChoiceDialog
 from workbench.tui.screens.edit_value import EditDialog
 from workbench.tui.views.cam import CamView
-from workbench.tui.widgets.cam_verdicts import CamVerdicts
+from workbench.tui.widgets.cam_verdicts import CamVerdicts, angle
 
 from tests.tui_pilot import settle
 
@@ -369,6 +369,11 @@ async def test_a_pivot_moved_inside_the_cam_fails_in_the_verdicts(press_file):
         assert row["value"] == f"{fmt(40.0 - largest)} mm"
         assert "✗ CHECK FAILED" in str(app.query_one("#cam-bar", Static).content)
         assert f"pivot not clear of the cam: its largest radius {fmt(largest)} mm" in verdicts_text(app)
+        at = next(c.at for c in app.query_one(CamView).entry.study.verdict.checks if c.quantity == "pivot_clearance")
+        await pilot.press("w")  # the worst spot first: where the cam reaches past the pivot
+        await settle(pilot)
+        assert app.query_one(CamView).angle == pytest.approx(float(angle(at).rstrip("°")))
+        assert "the cam reaching the pivot" in app.status_text
         await pilot.press("ctrl+z")
         await settle(pilot)
         assert rows(app)["pivot clearance"]["verdict"] == "✓ clear"

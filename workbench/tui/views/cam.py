@@ -332,7 +332,9 @@ class CamView(WorkbenchView):
             return []
         a = entry.study.analysis
         radii = a.pitch_radii if a.pitch_radii is not None else a.profile_radii
-        out = [("largest pressure angle", a.max_pressure_angle.at),
+        inside = [c for c in entry.study.verdict.checks if c.quantity == "pivot_clearance" and not c.ok]
+        out = [("the cam reaching the pivot", c.at) for c in inside]  # the cam cannot be built
+        out += [("largest pressure angle", a.max_pressure_angle.at),
                ("least convex radius" + (" of the pitch curve" if a.pitch_radii else ""), radii.convex.at)]
         out += [("undercut", i.start) for i in a.undercut] + [("cusp", i.start) for i in a.cusp]
         out += [("corner", c) for c in a.corners]
