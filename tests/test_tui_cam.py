@@ -270,6 +270,8 @@ async def test_export_asks_before_overwriting_and_refuses_an_uncuttable_dxf(tmp_
         assert not isinstance(app.screen, PathDialog)
         assert app.status_text.startswith("✗ no DXF") and "undercut from" in app.status_text
         assert not (tmp_path / "stamp-cam.dxf").exists()
+        # the reason is longer than the status line at 100 columns: it is also shown whole
+        assert [n.message for n in app._notifications] == [app.status_text.removeprefix("✗ ")]
         await pilot.press("e", "s")
         await pilot.pause()
         await pilot.press("enter")  # the proposed path exists: asked first

@@ -46,6 +46,9 @@ class FileLabel(Static):
     """Machine name, file name and whether there are unsaved changes."""
 
 
+ERROR_NOTE_S = 10.0  # s a long reason stays up in full beside the one-line status
+
+
 class StatusLine(Static):
     """The last thing that happened, or why something was refused."""
 
@@ -141,8 +144,11 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
 
     def set_status(self, text: str, error: bool = False) -> None:
         self.status_text = ("✗ " if error else "") + text
-        self.query_one(StatusLine).update(Text(self.status_text, style="bold red" if error else ""),
-                                          layout=False)
+        line = self.query_one(StatusLine)
+        line.update(Text(self.status_text, style="bold red" if error else ""), layout=False)
+        if error and len(self.status_text) > line.content_size.width > 0:
+            # a reason cut off by the one-line status is shown whole for a while
+            self.notify(text, title="Refused", severity="error", timeout=ERROR_NOTE_S)
 
     # --- state --------------------------------------------------------------
 
