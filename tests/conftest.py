@@ -2,7 +2,12 @@
 
 from __future__ import annotations
 
+import shutil
+from pathlib import Path
+
 import pytest
+
+from workbench.presets import preset_path
 
 # Environment variables that change how Textual draws (colours, theme, animations): a snapshot
 # taken with any of them set would differ from one taken on a plain CI machine.
@@ -15,3 +20,11 @@ def plain_environment(monkeypatch):
     """None of RENDERING_VARIABLES set, for SVG snapshots that match on any machine."""
     for name in RENDERING_VARIABLES:
         monkeypatch.delenv(name, raising=False)
+
+
+@pytest.fixture
+def press_file(tmp_path) -> Path:
+    """A copy of the cam-press preset to edit and save."""
+    path = tmp_path / "press.toml"
+    shutil.copy(preset_path("cam-press"), path)
+    return path

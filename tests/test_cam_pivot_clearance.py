@@ -25,7 +25,6 @@ from __future__ import annotations
 
 import json
 import math
-import shutil
 from pathlib import Path
 
 import numpy as np
@@ -319,13 +318,6 @@ def test_the_refined_outline_radius_matches_the_hand_layout():
 
 
 # --- the Cam view: a sizes edit that puts the pivot inside ---------------------------------
-
-
-@pytest.fixture
-def press_file(tmp_path) -> Path:
-    path = tmp_path / "press.toml"
-    shutil.copy(preset_path("cam-press"), path)
-    return path
 
 
 def rows(app) -> dict:

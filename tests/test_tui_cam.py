@@ -14,9 +14,7 @@ from __future__ import annotations
 
 import math
 import re
-import shutil
 from dataclasses import replace
-from pathlib import Path
 
 import numpy as np
 import pytest
@@ -45,13 +43,6 @@ from tests.tui_pilot import settle
 SIZE = (100, 30)
 STAMP = dict(prime=0.060, roller=0.012, offset=0.006)  # presets/cam-press.toml, [[cam]] "stamp-cam", in m
 FEED = dict(pivot=0.100, arm=0.070, prime=0.050, roller=0.010)  # [[cam]] "feed-cam"
-
-
-@pytest.fixture
-def press_file(tmp_path) -> Path:
-    path = tmp_path / "press.toml"
-    shutil.copy(preset_path("cam-press"), path)
-    return path
 
 
 def stamp_cam(project) -> Cam:

@@ -12,12 +12,9 @@ on a 0.01° grid.
 from __future__ import annotations
 
 import difflib
-import shutil
 from dataclasses import replace
-from pathlib import Path
 
 import numpy as np
-import pytest
 from textual.widgets import Input, Static
 
 from test_editing_parts import GRID, instant_centre_pressure_angles, textbook_pressure_angle
@@ -33,13 +30,6 @@ from workbench.tui.widgets.cam_verdicts import CamVerdicts
 from tests.tui_pilot import settle
 
 SIZE = (100, 30)
-
-
-@pytest.fixture
-def press_file(tmp_path) -> Path:
-    path = tmp_path / "press.toml"
-    shutil.copy(preset_path("cam-press"), path)
-    return path
 
 
 async def cam_view(pilot, cams_on: int = 0) -> CamView:

@@ -514,20 +514,6 @@ async def test_saving_over_a_file_changed_on_disk_asks_first(project_file, answe
             assert "not saved" in app.status_text
 
 
-async def test_quitting_with_save_saves_then_quits(project_file):
-    app = Workbench(load_project(project_file))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        await pilot.press("m", *"90", "enter")
-        await settle(pilot)
-        await pilot.press("ctrl+q")
-        await pilot.pause()
-        await pilot.press("s")
-        await settle(pilot)
-        assert not app.is_running
-    assert load_project(project_file).speed == 90.0
-
-
 async def test_open_refuses_an_invalid_file(project_file, tmp_path):
     bad = tmp_path / "bad.toml"
     bad.write_text(project_file.read_text().replace("span = 150.0", "span = 15.0"))
