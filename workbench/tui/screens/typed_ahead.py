@@ -10,8 +10,10 @@ through the field and its parents up to the app (where the bindings of
 Backspace, arrows and Enter run): Tab moves to the next field in its turn,
 and after Enter the rest wait — for the dialog to stay (a refused value:
 `stay`, the keys go on into it) or to close (they go back to the app, for
-the screen underneath).  Keys that arrive meanwhile join the queue, so
-nothing overtakes.
+the screen underneath).  A key that closes a drop-down's list (Enter picks,
+Escape leaves) holds the rest until the drop-down has the focus back, as it
+takes it back a moment later.  Keys that arrive meanwhile join the queue,
+so nothing overtakes.
 """
 
 from __future__ import annotations
@@ -19,13 +21,14 @@ from __future__ import annotations
 from textual import events
 from textual.screen import ModalScreen
 from textual.widget import Widget
-from textual.widgets import DataTable, Input
+from textual.widgets import DataTable, Input, Select
 
 from .field_select import FieldSelect
 
 FOCUS_KEYS = {"tab": "focus_next", "shift+tab": "focus_previous"}  # moved here, not by the field
 HAND_WAIT_S = 0.3  # the longest a key in hand holds back the next (a widget on its way was removed)
 SUBMITTING = (Input, DataTable, FieldSelect)  # fields whose Enter closes the dialog (`dismiss`) or is refused (`stay`)
+CLOSING_A_LIST = ("enter", "escape")  # keys that close an open drop-down list (pick, leave)
 
 
 class FieldDialog(ModalScreen):
@@ -40,6 +43,8 @@ class FieldDialog(ModalScreen):
         """An Enter was handed over: the rest wait until the dialog stays or goes."""
         self._handed = 0
         """How many keys have been handed over (the one in hand is the last)."""
+        self._refocus: Select | None = None
+        """A drop-down whose list a key closed: the next keys wait until it has the focus back."""
 
     def take_key(self, key: events.Key) -> None:
         """A key meant for this dialog that reached it another way: queue it and hand it over in turn."""
@@ -49,10 +54,12 @@ class FieldDialog(ModalScreen):
     def set_focus(self, widget: Widget | None, scroll_visible: bool = True, from_app_focus: bool = False) -> None:
         """Focus `widget`; queued keys go on to it."""
         super().set_focus(widget, scroll_visible, from_app_focus)
+        if widget is not None and widget is self._refocus:
+            self._refocus = None
         self._hand_next()
 
     def _hand_next(self) -> None:
-        if self._handing or self._after_enter or not self._queue or self.focused is None:
+        if self._handing or self._after_enter or self._refocus is not None or not self._queue or self.focused is None:
             return
         if not self.is_attached or self.app.screen is not self:
             return
@@ -64,6 +71,10 @@ class FieldDialog(ModalScreen):
         target = self.focused
         self._handing = True
         self._handed += 1
+        listing = next((node for node in target.ancestors if isinstance(node, Select) and node.expanded), None)
+        if listing is not None and key.key in CLOSING_A_LIST:
+            self._refocus = listing  # it takes the focus back once its list is closed: wait for that
+            self.set_timer(HAND_WAIT_S, lambda: self._refocus_waited(listing))
         self._after_enter = key.key == "enter" and isinstance(target, SUBMITTING)
         target._forward_event(key)
         n = self._handed
@@ -89,6 +100,13 @@ class FieldDialog(ModalScreen):
             return
         self._handing = False
         self._hand_next()
+
+    def _refocus_waited(self, listing: Select) -> None:
+        """`HAND_WAIT_S` after a key closed `listing`'s list it has not taken the focus back (the
+        focus went elsewhere): the keys after it go on."""
+        if self._refocus is listing:
+            self._refocus = None
+            self._hand_next()
 
     def _enter_waited(self, n: int) -> None:
         """`HAND_WAIT_S` after Enter `n` the dialog is still up and said nothing (an Enter that
