@@ -83,6 +83,18 @@ def test_default_donor_is_nearest_dwell_after_else_next(project):
     assert editing.default_donor(pusher, 1) == 2
 
 
+def test_a_span_grows_from_the_nearest_dwell_that_can_give_it(project):
+    pusher = project.axis("tray-pusher")  # dwell 30, modified-trapezoid 120, dwell 60, poly345 150
+    assert editing.default_donor(pusher, 1, 50.0) == 2  # the dwell after it has 60°
+    assert editing.default_donor(pusher, 1, 70.0) == 2  # no dwell can: the nearest, which refuses
+    grown = editing.set_span(project, "tray-pusher", 3, 170.0)  # +20°: the next dwell (30°) gives
+    assert [s.span for s in grown.axis("tray-pusher").segments] == [10.0, 120.0, 60.0, 170.0]
+    grown = editing.set_span(project, "tray-pusher", 3, 190.0)  # +40°: 30° cannot, the 60° can
+    assert [s.span for s in grown.axis("tray-pusher").segments] == [30.0, 120.0, 20.0, 190.0]
+    with pytest.raises(EditError, match="cannot give 70"):  # no dwell has 70° to give
+        editing.set_span(project, "tray-pusher", 3, 220.0)
+
+
 def test_a_segment_added_takes_its_span_from_a_dwell(project):
     lid = project.axis(LID)  # cycloidal, dwell, modified-sine
     assert editing.add_donor(lid, 1) == 1  # after the dwell: the dwell itself gives

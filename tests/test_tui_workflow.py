@@ -170,9 +170,10 @@ async def test_the_difference_goes_to_the_segment_picked_with_up_and_down(projec
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         editor = await open_span_cell(pilot)
-        assert editor.choice == 1 and "2 dwell 150°" in note_text(app)  # the dwell after it, first
+        assert "the nearest dwell that can" in note_text(app)  # first: the dwell after it that can
         await type_over(pilot, "100")
-        await pilot.press("down")  # the return gives the 10° instead
+        assert "segment 2 (dwell): 150° → 140°" in note_text(app)
+        await pilot.press("down", "down")  # the dwell by name, then the return: it gives the 10°
         await pilot.pause()
         assert editor.choice == 2 and "3 modified-sine 120°" in note_text(app)
         await pilot.press("enter")
@@ -180,6 +181,17 @@ async def test_the_difference_goes_to_the_segment_picked_with_up_and_down(projec
         # hand sum: 90 + 150 + 120 = 360; segment 1 takes 10° from segment 3
         assert [s.span for s in app.project.axis(LID).segments] == [100.0, 150.0, 110.0]
         assert str(app.query_one(SegmentTable).get_cell_at((2, 2))) == "110"
+
+
+async def test_a_span_typed_bigger_than_the_next_dwell_takes_from_one_that_can(project_file):
+    app = Workbench(load_project(project_file))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("full_stop")  # tray-pusher: dwell 30, modified-trapezoid 120, dwell 60, poly345 150
+        await settle(pilot)
+        await type_in_a_bunch(pilot, "down", "down", "down", "right", "right", "enter", "1", "9", "0", "enter")
+        assert [s.span for s in app.project.axis("tray-pusher").segments] == [30.0, 120.0, 20.0, 190.0]
+        assert app.status_text == "span of segment 4: 150° → 190° (segment 3 gave 40°)"
 
 
 async def test_end_position_and_time_are_typed_in_place(project_file):

@@ -7,8 +7,9 @@ out of here is as valid as one loaded from a file.
 
 Spans of an axis must sum to 360 master degrees.  An operation that changes
 one span therefore names a *donor*: the segment that gives (or takes) the
-difference.  `default_donor` picks the nearest dwell after the segment (a
-dwell is the usual slack in a cycle), else the next segment.
+difference.  `default_donor` picks the nearest dwell after the segment that
+can give it (a dwell is the usual slack in a cycle), else the nearest
+dwell, else the next segment.
 
 Segment numbers here are 0-based indices; messages show them 1-based, as the
 screens and the project file's error messages do.
@@ -156,16 +157,18 @@ def set_limit(project: Project, axis_name: str, quantity: str, value: float | No
 
 # --- spans -------------------------------------------------------------------
 
-def default_donor(axis: Axis, index: int) -> int | None:
-    """The segment that gives or takes span when `index` changes: nearest dwell after it, else the next."""
+def default_donor(axis: Axis, index: int, need: float = 0.0) -> int | None:
+    """The segment that gives or takes span when `index` changes by `need` deg: the nearest dwell
+    after it with more than `need` to give (any dwell takes when `need` ≤ 0), else the nearest
+    dwell after it (which then refuses with the reason), else the next segment."""
     n = len(axis.segments)
     if n < 2:
         return None
-    for step in range(1, n):
-        j = (index + step) % n
-        if axis.segments[j].law == "dwell":
+    dwells = [j for j in ((index + step) % n for step in range(1, n)) if axis.segments[j].law == "dwell"]
+    for j in dwells:
+        if round(axis.segments[j].span - need, SPAN_DIGITS) > 0:
             return j
-    return (index + 1) % n
+    return dwells[0] if dwells else (index + 1) % n
 
 
 def add_donor(axis: Axis, index: int) -> int:
@@ -200,11 +203,12 @@ def _rebalanced(axis: Axis, index: int, new_span: float, donor: int | None) -> l
 
 
 def set_span(project: Project, axis_name: str, index: int, span: float, donor: int | None = -1) -> Project:
-    """Segment span in master degrees; `donor` absorbs the difference (-1: `default_donor`)."""
+    """Segment span in master degrees; `donor` absorbs the difference (-1: `default_donor`, the
+    nearest dwell after it that can)."""
     axis = project.axes[axis_index(project, axis_name)]
-    _check_segment(axis, index)
+    seg = _check_segment(axis, index)
     if donor == -1:
-        donor = default_donor(axis, index)
+        donor = default_donor(axis, index, span - seg.span)
     return _with_segments(project, axis, _rebalanced(axis, index, span, donor))
 
 

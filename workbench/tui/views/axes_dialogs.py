@@ -100,6 +100,14 @@ def _choices(project: Project, axis_name: str, skip: int | None) -> list[tuple[s
 
 
 DONOR_PROMPT = "the difference is taken from / given to"
+NEAREST = -1  # the donor choice "the nearest dwell after it that can" (`editing.default_donor`)
+
+
+def _donor_choices(project: Project, axis_name: str, index: int) -> tuple[tuple[str, int], ...]:
+    """Who gives or takes a span's difference: the nearest dwell that can, then each other segment."""
+    if len(project.axis(axis_name).segments) < 2:
+        return ()
+    return (("the nearest dwell that can", NEAREST), *_choices(project, axis_name, index))
 
 
 def _typed(text: str, shown: str, exact: float, what: str, **rules) -> float:
@@ -137,8 +145,7 @@ def span_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, N
         f"span of segment {index + 1} ({seg.law}), axis {axis_name}",
         "span [deg] — the spans of an axis sum to 360°",
         shown, attempt, lambda p: describe(project, p, axis_name),
-        choices=tuple(_choices(project, axis_name, index)), choice_prompt=DONOR_PROMPT,
-        choice=editing.default_donor(axis, index),
+        choices=_donor_choices(project, axis_name, index), choice_prompt=DONOR_PROMPT, choice=NEAREST,
     )
     return edit, lambda p: span_note(project, p, axis_name, index, "span")
 
@@ -157,8 +164,7 @@ def time_edit(project: Project, axis_name: str, index: int) -> tuple[CellEdit, N
         f"time of segment {index + 1} ({seg.law}) at {number(project.speed, 'cycles/min')}",
         "time [ms] — sets the span at the machine speed; the spans sum to 360°",
         shown, attempt, lambda p: describe(project, p, axis_name),
-        choices=tuple(_choices(project, axis_name, index)), choice_prompt=DONOR_PROMPT,
-        choice=editing.default_donor(axis, index),
+        choices=_donor_choices(project, axis_name, index), choice_prompt=DONOR_PROMPT, choice=NEAREST,
     )
     return edit, lambda p: span_note(project, p, axis_name, index, "time")
 
