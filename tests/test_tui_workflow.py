@@ -624,6 +624,20 @@ async def test_a_segment_added_after_a_dwell_takes_the_dwells_span_and_enter_add
         after = app.project.axis(LID).segments
         assert len(after) == 4 and after[2].law == "dwell" and after[2].span == 30.0
         assert [s.span for s in after] == [before[0], before[1] - 30.0, 30.0, before[2]]
+        assert app.status_text == "new segment 3 (dwell, 30°); segment 2 gave its span"
+
+
+async def test_a_new_segment_proposes_a_span_its_giver_can_spare():
+    app = Workbench(load_project(preset_path("cam-press")))  # stamp: dwell 120, poly345 80, dwell 30, …
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("down", "down", "a")  # after the 30° dwell: it gives, 15° of it
+        await settle(pilot)
+        assert app.screen.query_one("#span", Input).value == "15"
+        assert str(app.screen.query_one("#feedback").render()).startswith("✓")
+        await pilot.press("enter")
+        await settle(pilot)
+        assert [s.span for s in app.project.axis("stamp").segments][2:4] == [15.0, 15.0]
 
 
 async def test_the_palette_lists_each_action_once(project_file):

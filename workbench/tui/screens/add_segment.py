@@ -26,8 +26,9 @@ class AddSegmentDialog(ModelDialog):
     BINDINGS = [Binding("escape", "cancel", "Cancel", tooltip="Add nothing")]
 
     def __init__(self, title: str, unit: str, position: float, donors: list[tuple[str, int]],
-                 donor: int, attempt: AddAttempt, explain: Callable[[Any], str]):
+                 donor: int, attempt: AddAttempt, explain: Callable[[Any], str], span: float = 30.0):
         super().__init__()
+        self.span = span
         self.title_text = title
         self.unit = unit
         self.position = position
@@ -45,7 +46,7 @@ class AddSegmentDialog(ModelDialog):
                 yield FieldSelect([(law, law) for law in law_ids()], value="dwell", allow_blank=False, compact=True, id="law")
             with Horizontal(classes="field"):
                 yield Label(Text("span [deg]"), classes="field-label")
-                yield Input("30", id="span", select_on_focus=True, compact=True)
+                yield Input(f"{self.span:g}", id="span", select_on_focus=True, compact=True)
             with Horizontal(classes="field"):
                 yield Label(Text(f"to [{self.unit}]"), classes="field-label")
                 yield Input(f"{self.position:g}", id="to", select_on_focus=True, compact=True)

@@ -100,6 +100,7 @@ def _choices(project: Project, axis_name: str, skip: int | None) -> list[tuple[s
 
 
 DONOR_PROMPT = "the difference is taken from / given to"
+NEW_SPAN = 30.0  # deg: a new segment's span, unless the segment giving it has less than twice that
 NEAREST = -1  # the donor choice "the nearest dwell after it that can" (`editing.default_donor`)
 
 
@@ -260,13 +261,22 @@ def add_dialog(project: Project, axis_name: str, index: int) -> tuple[ModelDialo
     axis = project.axis(axis_name)
     position = segment_ends(axis)[index][1]
     donor = editing.add_donor(axis, index)
+    span = min(NEW_SPAN, round(axis.segments[donor].span / 2.0, 1))  # one the giver can spare
 
     def attempt(law, span, to, donor_index):
         return editing.insert_segment(project, axis_name, index, law, span, to, donor_index)
 
+    def note(p: Project) -> str:
+        old, new = project.axis(axis_name).segments, p.axis(axis_name).segments
+        added = new[index + 1]
+        gave = next((j for j, (a, b) in enumerate(zip(old, new[:index + 1] + new[index + 2:])) if a.span != b.span),
+                    None)
+        text = f"new segment {index + 2} ({added.law}, {added.span:g}°)"
+        return text + (f"; segment {gave + 1} gave its span" if gave is not None else "")
+
     screen = AddSegmentDialog(
         f"New segment after segment {index + 1}, axis {axis_name}", axis.unit, position,
         _choices(project, axis_name, None), donor, attempt,
-        lambda p: describe(project, p, axis_name),
+        lambda p: describe(project, p, axis_name), span=span,
     )
-    return screen, f"new segment after {index + 1}"
+    return screen, note
