@@ -713,6 +713,10 @@ async def test_the_timing_readout_shows_a_true_zero_as_0(project_file):
         t = 90.0 / 360.0 * 60.0 / 120.0
         assert velocity[0] == f"{2.0 * 40.0 / t:.4g} mm/s"
         assert acceleration[0] == "0 mm/s²"
+        # the last column is the axis over the whole cycle, not at the cursor: its most used limit,
+        # the rise's jerk j = Cj·h/T³ with Cj = 4π² (handbook value, from memory) against 700,000
+        cycle = [str(c) for c in readout.content.columns[5].cells]
+        assert cycle[0] == f"✗ jerk {4 * math.pi**2 * 40.0 / t**3 / 700_000.0 * 100:.0f} %"
 
 
 async def test_a_burst_of_edits_ends_with_the_numbers_of_the_last(project_file):

@@ -67,11 +67,8 @@ def verdict(used: float | None) -> Text:
     return Text("✓ within", style=OK_STYLE)
 
 
-def axis_verdict(ok: bool, has_limits: bool, short: bool = False) -> Text:
-    """An axis against its limits over the cycle: "✓ all within limits" or "✗ LIMIT EXCEEDED"
-    ("✓ within", "✗ OVER" when `short`, for a column headed "limits")."""
+def axis_verdict(ok: bool, has_limits: bool) -> Text:
+    """An axis against its limits over the cycle: "✓ all within limits" or "✗ LIMIT EXCEEDED"."""
     if not has_limits:
-        return Text("· none" if short else "· no limits", style="dim")
-    if ok:
-        return Text("✓ within" if short else "✓ all within limits", style=OK_STYLE)
-    return Text("✗ OVER" if short else "✗ LIMIT EXCEEDED", style=OVER_STYLE)
+        return Text("· no limits", style="dim")
+    return Text("✓ all within limits", style=OK_STYLE) if ok else Text("✗ LIMIT EXCEEDED", style=OVER_STYLE)

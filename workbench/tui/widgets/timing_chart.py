@@ -8,16 +8,19 @@ marks one master angle; `TimingReadout` lists every axis at that angle.
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 from rich.table import Table
 from rich.text import Text
 from textual.widget import Widget
 from textual.widgets import Static
 
+from ...axisreport import percent
 from ...editing import segment_ends
 from ...projectfile import Project
 from ..compute import AxisResult
-from ..format import axis_verdict, degrees, number, tidy, unit_of
+from ..format import OK_STYLE, OVER_STYLE, degrees, number, tidy, unit_of
 
 NAME_WIDTH = 14  # columns for the axis name at the left of each band
 TRACE_ROWS = 2  # rows of position trace per axis (16 levels in eighth-blocks)
@@ -143,6 +146,23 @@ class TimingChart(Widget, can_focus=True):
         return text
 
 
+SHORT_NAMES = {"acceleration": "accel."}
+CYCLE_HEADER = "over the cycle"  # the last column: not at the cursor, the axis's most used limit
+
+
+def cycle_verdict(result: AxisResult) -> Text:
+    """The axis's most used limit over the whole cycle: "✗ accel. 133 %", "✓ jerk 74 %", or
+    "· no limits" (acceleration shortened: the column fits beside the others at 80 columns)."""
+    checks = result.report.checks
+    if not checks:
+        return Text("· no limits", style="dim")
+    worst = max(checks, key=lambda c: c.used)
+    share = "∞ %" if math.isinf(worst.used) else percent(worst.used)
+    ok = result.report.ok
+    name = SHORT_NAMES.get(worst.quantity, worst.quantity)
+    return Text(f"{'✓' if ok else '✗'} {name} {share}", style=OK_STYLE if ok else OVER_STYLE)
+
+
 class TimingReadout(Static):
     """Every axis at the cursor's master angle: segment, position, velocity, acceleration, and
     whether the axis keeps within its limits over the cycle."""
@@ -152,8 +172,9 @@ class TimingReadout(Static):
     def show(self, project: Project | None, results: dict[str, AxisResult], angle: float) -> None:
         table = Table(box=None, padding=(0, 1), show_edge=False, header_style="bold",
                       title=Text(f"at master {degrees(angle)}", style="bold"), title_justify="left")
-        for header in ("axis", "segment", "position", "velocity", "acceleration", "limits"):
-            table.add_column(header, justify="left" if header in ("axis", "segment", "limits") else "right")
+        for header in ("axis", "segment", "position", "velocity", "acceleration", CYCLE_HEADER):
+            table.add_column(header, justify="left" if header in ("axis", "segment", CYCLE_HEADER) else "right",
+                             no_wrap=True)
         if project is not None:
             for axis in project.axes:
                 result = results.get(axis.name)
@@ -168,6 +189,5 @@ class TimingReadout(Static):
                               unit_of(quantity, axis.unit))
                        for quantity, values in (("position", curves.position), ("velocity", curves.velocity),
                                                 ("acceleration", curves.acceleration))]
-                verdict = axis_verdict(result.report.ok, axis.limits.any, short=True)  # over the cycle
-                table.add_row(axis.name, f"{seg + 1} {law}", *row, verdict)
+                table.add_row(axis.name, f"{seg + 1} {law}", *row, cycle_verdict(result))
         self.update(table)
