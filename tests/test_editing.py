@@ -266,3 +266,8 @@ def test_large_numbers_and_shares_read_the_same_way_beside_their_limits():
     assert fmt(2.5e9) == "2.500e+09" and fmt(1.368e-12) == "1.368e-12"
     assert percent(1.16) == "116 %" and percent(0.4567, 1) == "45.7 %" and percent(123.4) == "12,340 %"
     assert percent(6.68e20) == "> 99,999 %"  # a speed typed far too high
+
+
+def test_a_typed_minus_zero_is_zero():
+    value = editing.parse_number("-0", "to")
+    assert value == 0.0 and math.copysign(1.0, value) == 1.0 and f"{value:g}" == "0"

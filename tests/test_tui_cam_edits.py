@@ -90,7 +90,7 @@ async def test_t_reverses_an_oscillating_cam_in_one_undoable_edit(press_file):
         await pilot.press("ctrl+z")
         await settle(pilot)
         assert app.project is before and not app.history.modified
-        assert app.status_text == "undid: cam feed-cam: turning cw → ccw"
+        assert app.status_text == "undid the edit “cam feed-cam: turning cw → ccw”"
         assert rows(app)["pressure angle"]["value"] == f"{fmt(peak['cw'])}°" and "turns cw ↻" in bar(app)
 
 

@@ -128,7 +128,7 @@ async def test_edit_span_in_place_changes_peaks(project_file):
         # undo and redo of the edit made in place
         await pilot.press("ctrl+z")
         await settle(pilot)
-        assert app.status_text == "undid: span of segment 1: 90° → 120° (segment 2 gave 30°)"
+        assert app.status_text == "undid the edit “span of segment 1: 90° → 120° (segment 2 gave 30°)”"
         assert [s.span for s in app.project.axis(LID).segments] == [90.0, 150.0, 120.0]
         assert not app.history.modified
         assert str(table.get_cell_at((0, 2))) == "90"
@@ -366,7 +366,7 @@ async def test_undo_redo_every_edit(project_file):
         await settle(pilot)
         assert [s.span for s in app.project.axis(LID).segments][:2] == [45.0, 45.0]
         assert app.query_one(SegmentTable).row_count == 4
-        assert "redid: split segment 1" in app.status_text
+        assert "redid the edit “split segment 1" in app.status_text
 
 
 async def test_undoing_a_rename_keeps_the_axis_on_view(project_file):
@@ -465,7 +465,7 @@ async def test_save_reopen_and_compare_file(project_file, tmp_path):
         assert isinstance(app.screen, ChoiceDialog)
         await pilot.press("escape")
         await pilot.pause()
-        assert app.project.path == other
+        assert app.project.path == other and app.status_text == f"not saved: {project_file} is left as it was"
         await pilot.press("ctrl+o")
         await pilot.pause()
         app.screen.query_one("#path", Input).value = str(project_file)
@@ -800,7 +800,8 @@ def dialog_title(app) -> str:
      lambda app: app.project.axis(LID).segments[0].span == 100.0 and dialog_title(app) == "Machine speed"),
     # Tab moves to the next field in its turn; Backspace acts before the digits after it
     (("L", "9", "9", "9", "tab", "5", "0", "0", "0", "0", "enter"),
-     lambda app: (app.project.axis(LID).limits.velocity, app.project.axis(LID).limits.acceleration) == (999.0, 50000.0)),
+     lambda app: (app.project.axis(LID).limits.velocity, app.project.axis(LID).limits.acceleration) == (999.0, 50000.0)
+     and app.status_text == "limits of axis lid-lift: velocity 900 → 999 mm/s, acceleration 25,000 → 50,000 mm/s²"),
     (("L", "backspace", "8", "0", "0", "enter"), lambda app: app.project.axis(LID).limits.velocity == 800.0),
     # keys after the Enter that closes a dialog act on the screen under it
     (("m", "1", "1", "0", "enter", "l"),

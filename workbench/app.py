@@ -197,7 +197,7 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
         except EditError as exc:
             self.set_status(exc.message, error=True)
             return
-        self.set_status(f"undid: {note}")
+        self.set_status(f"undid the edit “{note}”")
         self._show_state()
 
     def action_redo(self) -> None:
@@ -206,7 +206,7 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
         except EditError as exc:
             self.set_status(exc.message, error=True)
             return
-        self.set_status(f"redid: {note}")
+        self.set_status(f"redid the edit “{note}”")
         self._show_state()
 
     # --- views --------------------------------------------------------------
@@ -284,9 +284,14 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
             if path is None:
                 return
             if path.exists() and not (self.project.path and same_file(path, self.project.path)):
+                def answered(word: str | None) -> None:
+                    if word == "overwrite":
+                        self._save_to(path)
+                    else:
+                        self.set_status(f"not saved: {path} is left as it was")
+
                 self.push_screen(ChoiceDialog("File exists", f"{path} exists already.",
-                                              [("o", "overwrite", "overwrite it")]),
-                                 lambda word: self._save_to(path) if word == "overwrite" else None)
+                                              [("o", "overwrite", "overwrite it")]), answered)
                 return
             self._save_to(path)
 

@@ -65,7 +65,7 @@ def parse_number(text: str, what: str, *, positive: bool = False, allow_blank: b
         raise EditError(f"{what}: must be finite, got {raw!r}", what)
     if positive and value <= 0:
         raise EditError(f"{what}: must be above 0, got {raw}", what)
-    return value
+    return value + 0.0  # "-0" is 0 (not shown or saved as -0)
 
 
 # --- helpers -----------------------------------------------------------------

@@ -247,13 +247,15 @@ def limits_dialog(project: Project, axis_name: str) -> tuple[ModelDialog, Note]:
 
 
 def limits_change(before, after) -> str:
-    """"velocity 900 → 999 mm/s, jerk none → 5e+05 mm/s³": the limits that differ."""
+    """"velocity 900 → 999 mm/s, jerk none → 500,000 mm/s³": the limits that differ, written out
+    in full and grouped as the peaks table shows them."""
+    def shown(value: float | None) -> str:
+        return "none" if value is None else f"{value:,.12g}"
+
     parts = []
     for (q, old), (_, new) in zip(before.limits.items(), after.limits.items()):
         if old != new:
-            unit = unit_of(q, before.unit)
-            parts.append(f"{q} {'none' if old is None else f'{old:g}'} → "
-                         f"{'none' if new is None else f'{new:g}'} {unit}")
+            parts.append(f"{q} {shown(old)} → {shown(new)} {unit_of(q, before.unit)}")
     return ", ".join(parts) or "unchanged"
 
 
