@@ -99,6 +99,20 @@ def test_tick_labels_name_values_in_their_rows():
     assert np.all(kinds[-1][np.array([c != " " for c in text[-1]])] == TICK)
 
 
+def test_a_short_plot_labels_each_row_with_a_value_in_it():
+    width, height = 60, 8  # four rows of data: 20k, 10k, 0, -10k, -20k would put two in a row
+    lo, hi = -21_000.0, 21_000.0
+    chart = Chart("a", THETA, np.zeros(THETA.size), lo, hi)
+    codes, _ = draw(chart, width, height)
+    scale = Scale(width - 9, height - 4, lo, hi)
+    text = ["".join(map(chr, row)) for row in codes]
+    labels = {r: text[2 + r][:6].strip() for r in range(scale.rows) if text[2 + r][:6].strip()}
+    for r, label in labels.items():  # each label's value is drawn in its own row
+        value = float(label.replace("k", "e3"))
+        assert scale.row(value) == r, (label, r)
+    assert labels[scale.row(0.0)] == "0"  # the zero line (a dwell) reads 0
+
+
 def test_a_small_plot_shows_only_its_title():
     chart = Chart("velocity [mm/s]", THETA, np.zeros(THETA.size), -1.0, 1.0, limit=0.5)
     codes, kinds = draw(chart, 30, 4)

@@ -170,7 +170,7 @@ async def test_the_difference_goes_to_the_segment_picked_with_up_and_down(projec
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         editor = await open_span_cell(pilot)
-        assert "the nearest dwell that can" in note_text(app)  # first: the dwell after it that can
+        assert "◂ nearest dwell that can ▸" in note_text(app)  # first: the dwell after it that can
         await type_over(pilot, "100")
         assert "segment 2 (dwell): 150° → 140°" in note_text(app)
         await pilot.press("down", "down")  # the dwell by name, then the return: it gives the 10°

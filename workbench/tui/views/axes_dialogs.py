@@ -99,7 +99,7 @@ def _choices(project: Project, axis_name: str, skip: int | None) -> list[tuple[s
     return [(f"{i + 1} {s.law} {s.span:g}°", i) for i, s in enumerate(axis.segments) if i != skip]
 
 
-DONOR_PROMPT = "the difference is taken from / given to"
+DONOR_PROMPT = "difference taken from / given to"
 NEW_SPAN = 30.0  # deg: a new segment's span, unless the segment giving it has less than twice that
 NEAREST = -1  # the donor choice "the nearest dwell after it that can" (`editing.default_donor`)
 
@@ -108,7 +108,7 @@ def _donor_choices(project: Project, axis_name: str, index: int) -> tuple[tuple[
     """Who gives or takes a span's difference: the nearest dwell that can, then each other segment."""
     if len(project.axis(axis_name).segments) < 2:
         return ()
-    return (("the nearest dwell that can", NEAREST), *_choices(project, axis_name, index))
+    return (("nearest dwell that can", NEAREST), *_choices(project, axis_name, index))
 
 
 def _typed(text: str, shown: str, exact: float, what: str, **rules) -> float:

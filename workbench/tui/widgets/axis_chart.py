@@ -71,6 +71,17 @@ def compact(value: float) -> str:
     return f"{value:.4g}"
 
 
+def y_ticks(scale: Scale, count: int) -> list[float]:
+    """About `count` ticks at 1-2-5 steps, fewer where two would share a row: a label names the
+    values of its own row (with two ticks in a row, a "-10k" would sit on the zero line)."""
+    while True:
+        ticks = nice_ticks(scale.lo, scale.hi, count)
+        rows = [scale.row(t) for t in ticks if 0 <= scale.row(t) < scale.rows]
+        if len(set(rows)) == len(rows) or count <= 2:
+            return ticks
+        count -= 1
+
+
 def nice_ticks(lo: float, hi: float, count: int) -> list[float]:
     """About `count` ticks at 1-2-5 steps covering [lo, hi]."""
     if hi <= lo or count < 2:
@@ -182,9 +193,9 @@ def draw(chart: Chart | None, width: int, height: int) -> tuple[np.ndarray, np.n
 
     # y ticks: labels right-aligned left of the frame, marks on both sides
     kept: list[int] = []
-    for t in nice_ticks(chart.lo, chart.hi, max(2, (height - 2) // ROWS_PER_TICK + 1)):
+    for t in y_ticks(scale, max(2, (height - 2) // ROWS_PER_TICK + 1)):
         r = scale.row(t)
-        if not 0 <= r < rows or r in kept:  # two ticks in one row: the first is labelled
+        if not 0 <= r < rows or r in kept:  # two ticks in one row even at the coarsest: the first
             continue
         kept.append(r)
         label = compact(t)[:LEFT - 1]
