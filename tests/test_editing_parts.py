@@ -318,7 +318,7 @@ def test_renaming_an_axis_carries_the_linkage_driver_along():
     assert after.status == before.status
     assert [o.peaks for o in after.outputs] == [o.peaks for o in before.outputs]
     text = dumps(edited)
-    assert 'axis = "sled"\noffset = 160.0' in text and 'name = "sled"           # the motion program' in text
+    assert 'axis = "sled"\noffset = 160.0' in text and 'name = "sled"               # the motion program' in text  # the comment keeps its column
     assert linkage_specs(loads_project(text))[0] == spec
 
 

@@ -162,7 +162,11 @@ def test_saved_layout_is_the_hand_written_one(name):
     project = load_project(preset_path(name))
     text = dumps(project)
     assert "[[axis.segment]]" in text and "segment = [" not in text
-    assert tomllib.loads(text) == project_data(project)
+    data = project_data(project)
+    for entry, saved in zip(data["axis"], tomllib.loads(text)["axis"]):
+        if "start" not in saved:  # the default, left unwritten as in the preset
+            assert entry.pop("start") == 0.0
+    assert tomllib.loads(text) == data
 
 
 def test_float_text_is_short_and_exact():
@@ -209,6 +213,33 @@ def test_saving_an_edited_file_keeps_its_comments_and_changes_only_what_changed(
 
     changed = [l for l in difflib.ndiff(source.splitlines(), text.splitlines()) if l[:1] in "+-"]
     assert "- span = 90.0" in changed and "+ span = 100.0" in changed
+
+
+@pytest.mark.parametrize("name", preset_names())
+def test_a_speed_change_saves_as_one_changed_line(tmp_path, name):
+    from workbench import editing
+
+    target = tmp_path / f"{name}.toml"
+    source = preset_path(name).read_text()
+    target.write_text(source)
+    project = load_project(target)
+    save_project(editing.set_speed(project, project.speed + 5.0))
+    before, after = source.splitlines(), target.read_text().splitlines()
+    changed = [(a, b) for a, b in zip(before, after) if a != b]
+    assert len(before) == len(after) and len(changed) == 1  # no line added (an axis start of 0)
+    (old, new), = changed
+    key = "speed" if old.startswith("speed") else "cycle_time"
+    assert new.startswith(key)
+    if key == "speed" and "#" in old:  # a whole number stays one, and the comment keeps its column
+        assert "." not in new.split("#")[0] or "." in old.split("#")[0]
+        assert new.index("#") == old.index("#")
+    assert load_project(target).speed == pytest.approx(project.speed + 5.0, rel=1e-12)
+
+
+def test_an_axis_start_of_0_is_saved_as_the_file_had_it():
+    assert "start = 0.0" in GOOD and "start = 0.0" in dumps(loads_project(GOOD, "x.toml"))
+    unwritten = GOOD.replace("start = 0.0\n", "")
+    assert "start" not in dumps(loads_project(unwritten, "x.toml"))
 
 
 def test_merge_falls_back_to_canonical_layout_when_it_cannot_be_exact(monkeypatch):

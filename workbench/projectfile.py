@@ -254,10 +254,25 @@ def dumps(project: Project) -> str:
     changed (comments and layout kept), or the canonical layout for a new file."""
     data = project_data(project)
     if project.source_text is not None:
+        _leave_unwritten_defaults(data, project.source_text)
         merged = merge_text(project.source_text, data)
         if merged is not None:
             return merged
     return toml_dumps(data)
+
+
+def _leave_unwritten_defaults(data: dict, source_text: str) -> None:
+    """An axis `start` of 0 (the default) stays unwritten where the file did not write it, so a
+    save adds no line the user did not have."""
+    try:
+        original = tomllib.loads(source_text)
+    except tomllib.TOMLDecodeError:
+        return
+    axes = original.get("axis", [])
+    written = {a.get("name"): a for a in axes if isinstance(a, dict)} if isinstance(axes, list) else {}
+    for entry in data.get("axis", []):
+        if entry.get("start") == 0.0 and "start" not in written.get(entry["name"], {}):
+            del entry["start"]
 
 
 def write_atomic(path, text: str) -> None:

@@ -61,7 +61,21 @@ def _merge(container, new: dict) -> None:
             while len(old) > len(value):
                 del old[len(old) - 1]
         elif _plain(old) != value or type(_plain(old)) is bool and type(value) is not bool:
-            container[key] = _new_item(key, value)
+            _replace(container, key, old, value)
+
+
+def _replace(container, key, old, value) -> None:
+    """`key` set to `value` in place: a whole number stays written as one where the file wrote an
+    integer (speed = 60 → 65, not 65.0), and a comment after it keeps its column."""
+    if isinstance(value, float) and value.is_integer() and type(_plain(old)) is int:
+        value = int(value)
+    width = len(old.as_string()) if hasattr(old, "as_string") else None
+    container[key] = _new_item(key, value)
+    new = container.item(key) if hasattr(container, "item") else None
+    trivia = getattr(new, "trivia", None)
+    if width is not None and trivia is not None and trivia.comment:
+        spare = len(trivia.comment_ws) - (len(new.as_string()) - width)
+        trivia.comment_ws = " " * max(1, spare)
 
 
 def _plain(item):
