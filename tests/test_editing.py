@@ -210,6 +210,9 @@ def test_speed_keeps_the_form_of_the_file():
     edited = editing.set_speed(carton, 100.0)
     assert edited.machine.speed is None and edited.machine.cycle_time == pytest.approx(0.6)
     assert edited.speed == pytest.approx(100.0)
+    # 90 cycles/min has no short cycle time: it is kept as typed, a speed
+    edited = editing.set_speed(carton, 90.0)
+    assert edited.machine.speed == 90.0 and edited.machine.cycle_time is None
     with pytest.raises(EditError, match="above 0"):
         editing.set_speed(carton, -1.0)
 

@@ -121,13 +121,19 @@ def _segment_label(axis: Axis, index: int) -> str:
 
 # --- machine -----------------------------------------------------------------
 
+SHORT_CYCLE_TIME = 8  # characters: a cycle time written shorter than this is kept as the file's form
+
+
 def set_speed(project: Project, cycles_per_minute: float) -> Project:
-    """Machine speed in cycles/min; a machine given by cycle time keeps that form."""
+    """Machine speed in cycles/min.  A machine given by cycle time keeps that form when the new
+    cycle time is a short decimal (75 → 0.8 s); else the speed is written as typed (90, not a
+    cycle time of 0.6666666666666666 s)."""
     if not (math.isfinite(cycles_per_minute) and cycles_per_minute > 0):
         raise EditError(f"speed: must be above 0 cycles/min, got {cycles_per_minute:g}", "speed")
     m = project.machine
-    if m.cycle_time is not None and m.speed is None:
-        machine = replace(m, cycle_time=60.0 / cycles_per_minute)
+    cycle_time = 60.0 / cycles_per_minute
+    if m.cycle_time is not None and m.speed is None and len(repr(cycle_time)) < SHORT_CYCLE_TIME:
+        machine = replace(m, cycle_time=cycle_time)
     else:
         machine = replace(m, speed=float(cycles_per_minute), cycle_time=None)
     return replace(project, machine=machine)
