@@ -14,6 +14,7 @@ from textual.widgets import Input, Label, Select, Static
 from motionlaws import law_ids
 
 from ...editing import EditError, parse_number
+from .edit_value import accepted
 from .field_select import FieldSelect
 from .model_dialog import ModelDialog
 
@@ -76,7 +77,7 @@ class AddSegmentDialog(ModelDialog):
             feedback.update(Text(f"✗ {exc.message}", style="bold red"))
             return None
         self.error = None
-        feedback.update(Text(f"✓ {self.explain(result)}", style="green"))
+        feedback.update(accepted(self.explain(result)))
         self.offer(result)
         return result
 

@@ -33,8 +33,15 @@ def try_value(attempt: Attempt, explain: Explain | None, text: str, choice: Any)
         result = attempt(text, choice)
     except EditError as exc:
         return None, exc.message, Text(f"✗ {exc.message}", style="bold red")
-    preview = explain(result) if explain else ""
-    return result, None, Text(f"✓ {preview}" if preview else "✓ ok", style="green")
+    return result, None, accepted(explain(result) if explain else "")
+
+
+def accepted(preview: str, empty: str = "ok") -> Text:
+    """The line for a value that is accepted: "✓ " and what it makes — "! " when what it makes fails
+    a check or a limit (no ✓ in front of a ✗)."""
+    if "✗" in preview or "EXCEEDED" in preview:
+        return Text(f"! {preview}", style="yellow")
+    return Text(f"✓ {preview or empty}", style="green") if preview or empty else Text("")
 
 
 class EditDialog(ModelDialog):

@@ -19,6 +19,7 @@ from textual.containers import Horizontal, Vertical
 from textual.widgets import Input, Label, Static
 
 from ...editing import EditError
+from .edit_value import accepted
 from .model_dialog import ModelDialog
 
 
@@ -82,7 +83,7 @@ class FieldsDialog(ModelDialog):
             return None
         self.error = None
         preview = self.explain(result) if self.explain else ""
-        feedback.update(Text(f"✓ {preview or 'ok'}", style="green"))
+        feedback.update(accepted(preview))
         self.offer(result)
         return result
 

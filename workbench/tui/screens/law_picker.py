@@ -11,6 +11,7 @@ from textual.containers import Vertical
 from textual.widgets import DataTable, Label, Static
 
 from ...editing import EditError, law_table
+from .edit_value import accepted
 from .model_dialog import ModelDialog
 
 NOTES = {  # what a designer needs to know beside the coefficients
@@ -71,7 +72,7 @@ class LawPicker(ModelDialog):
             feedback.update(Text(f"✗ {exc.message}", style="bold red"))
             return
         preview = self.explain(result) if self.explain else ""
-        feedback.update(Text(f"✓ {preview}" if preview else "", style="green"))
+        feedback.update(accepted(preview, empty=""))
         self.offer(result)
 
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
