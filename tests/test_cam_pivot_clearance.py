@@ -352,6 +352,7 @@ async def test_a_pivot_moved_inside_the_cam_fails_in_the_verdicts(press_file):
         await pilot.pause()
         feedback = str(app.screen.query_one("#feedback", Static).content)
         assert "pivot_distance 100 mm → 40 mm" in feedback and "pivot clearance" in feedback
+        assert feedback.startswith("! ")  # accepted, but what it makes fails: not marked ✓
         await pilot.press("enter")
         await settle(pilot)
         assert app.project.parts["cam"][1].size("pivot_distance") == 40.0
