@@ -267,6 +267,10 @@ def test_large_numbers_and_shares_read_the_same_way_beside_their_limits():
 
     assert fmt(1_228_518.4) == "1,228,518" and fmt(700_000.0) == "700,000"  # a jerk beside its limit
     assert fmt(2.5e9) == "2.500e+09" and fmt(1.368e-12) == "1.368e-12"
+    assert fmt(5261.3) == "5,261" and fmt(9999.9) == "10,000"  # not 1e+04
+    from workbench.axisreport import angle_column
+
+    assert [angle_column(a) for a in (136.9087, 160.0, 86.587, -0.0001)] == ["136.91", "160.00", "86.59", "0.00"]
     assert percent(1.16) == "116 %" and percent(0.4567, 1) == "45.7 %" and percent(123.4) == "12,340 %"
     assert percent(6.68e20) == "> 99,999 %"  # a speed typed far too high
 

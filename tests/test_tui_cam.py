@@ -368,7 +368,7 @@ async def test_an_offset_typed_in_the_cam_view_reaches_the_geometry_and_the_file
     text = press_file.read_text()
     changed = [(a, b) for a, b in zip(preset_path("cam-press").read_text().splitlines(), text.splitlines()) if a != b]
     assert len(text.splitlines()) == len(preset_path("cam-press").read_text().splitlines())
-    assert [b for _, b in changed] == ["offset = -4.0                # mm, to the side that eases the down stroke"]
+    assert [b for _, b in changed] == ["offset = -4.0               # mm, to the side that eases the down stroke"]  # the comment keeps its column
     assert dict(load_project(press_file).parts["cam"][0].sizes)["offset"] == -4.0
 
 

@@ -432,7 +432,7 @@ async def test_renaming_the_driving_axis_keeps_the_linkage_running(carriage_file
         await pilot.press("ctrl+s")
         await settle(pilot)
     text = carriage_file.read_text()
-    assert 'name = "sled"           # the motion program: carriage stroke, mm' in text
+    assert 'name = "sled"               # the motion program: carriage stroke, mm' in text  # the comment keeps its column
     assert 'axis = "sled"\n' in text and 'name = "carriage"\n' in text  # the body keeps its name
     assert linkage_specs(load_project(carriage_file))[0].drivers[0].axis == "sled"
 

@@ -72,7 +72,7 @@ async def test_the_pusher_s_drive_torque_and_servo(size):
         assert shown["motor torque, peak"] == {"value": f"{fmt(peak.value)} N·m", "at": deg(peak.at),
                                                "verdict": f"✓ {used * 100:.0f} % of {fmt(PEAK)} N·m"}
         assert shown["motor torque, RMS"]["verdict"] == f"✓ {servo.motor.rms_torque / RMS * 100:.0f} % of {fmt(RMS)} N·m"
-        assert shown["motor speed, peak"]["value"] == "1600 rpm"  # 20 × 80 rpm
+        assert shown["motor speed, peak"]["value"] == "1,600 rpm"  # 20 × 80 rpm
         reactions = linkage_loads(solve_linkage(app.project, linkage_specs(app.project)[0]).result,
                                   pusher_loading()).reactions
         assert shown["pin B force, peak"]["value"] == f"{fmt(reactions['B'].peak.value)} N"
@@ -99,7 +99,7 @@ async def test_the_readout_follows_the_closed_form():
         value = float(re.search(r"torque at pin O (-?[\d.,]+) N·m", shown).group(1).replace(",", ""))
         closed = slider_crank_torque(np.array([math.pi / 2]), 2 * math.pi * PUSHER_SPEED / 60)[0]
         assert value == float(fmt(closed).replace(",", ""))
-        assert "motor" in shown and "1600 rpm" in shown
+        assert "motor" in shown and "1,600 rpm" in shown
 
 
 async def test_a_motor_over_its_limit_is_said_so():
@@ -130,7 +130,7 @@ async def test_editing_the_machine_speed_changes_the_drive_torque(tmp_path):
         drive, servo = sizing(120.0)
         after = figures(app)["torque at pin O, peak"]["value"]
         assert after == f"{fmt(drive.peak.value)} N·m" != before
-        assert figures(app)["motor speed, peak"]["value"] == "2400 rpm"  # 20 × 120 rpm
+        assert figures(app)["motor speed, peak"]["value"] == "2,400 rpm"  # 20 × 120 rpm
         assert "120 cycles/min" in text(app, "#loads-bar")
 
 

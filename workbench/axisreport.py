@@ -28,6 +28,11 @@ def _at(value: float) -> float:
     return round(value, 6) + 0.0
 
 
+def angle_column(value: float) -> str:
+    """A master angle in a report's "at [deg]" column: two decimals, so the column lines up."""
+    return f"{round(value, 2) + 0.0:.2f}"
+
+
 def axis_json(report: AxisReport) -> dict:
     peaks = {}
     for q in QUANTITIES:
@@ -87,8 +92,8 @@ def fmt(value: float | None, digits: int = 4) -> str:
         return f"{value:.{digits - 1}e}"
     if abs(value) >= 10 ** digits:
         return f"{value:,.0f}"
-    text = f"{value:.{digits}g}"
-    return text
+    text = f"{value:,.{digits}g}"  # 5,261 beside 12,000
+    return f"{value:,.0f}" if "e" in text else text  # 9,999.9 rounds up to 10,000, not 1e+04
 
 
 def verdict_text(used: float) -> Text:
@@ -126,7 +131,7 @@ def axis_table(report: AxisReport) -> Group:
         table.add_row(
             Text(f"{q} [{unit}{POWER[q]}]"),  # Text: brackets are not markup
             value,
-            fmt(_at(p.at), 5) if p.at else "0",
+            angle_column(p.at),
             fmt(check.limit) if check else "—",
             used_text(check.used) if check else "—",
             verdict_text(check.used) if check else Text("no limit", style="dim"),

@@ -139,13 +139,13 @@ def output_block(spec, spec_output, study) -> Group:
                          f"  {describe(spec_output.target, spec)} [{unit}]  ", state)
     table = _table((("", "left"), ("value", "right"), ("at [deg]", "right"), ("limit", "right"),
                     ("used", "right"), ("verdict", "left")))
-    table.add_row(Text(f"lowest [{unit}]"), fmt(study.minimum.value), fmt(_at(study.minimum.at), 5), "", "", "")
-    table.add_row(Text(f"highest [{unit}]"), fmt(study.maximum.value), fmt(_at(study.maximum.at), 5), "", "", "")
+    table.add_row(Text(f"lowest [{unit}]"), fmt(study.minimum.value), axisreport.angle_column(_at(study.minimum.at)), "", "", "")
+    table.add_row(Text(f"highest [{unit}]"), fmt(study.maximum.value), axisreport.angle_column(_at(study.maximum.at)), "", "", "")
     checks = {c.quantity: c for c in study.checks}
     for q in QUANTITIES:
         peak, check = study.peaks[q], checks.get(q)
         table.add_row(Text(f"{q} [{unit}{POWER[q]}]"), "infinite" if peak.infinite else fmt(peak.value),
-                      fmt(_at(peak.at), 5), fmt(check.limit) if check else "—",
+                      axisreport.angle_column(_at(peak.at)), fmt(check.limit) if check else "—",
                       axisreport.used_text(check.used) if check else "—", _verdict(check))
     lines = [head, Padding(table, (0, 0, 0, 4))]
     if study.max_speed is not None:

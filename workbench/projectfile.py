@@ -268,10 +268,12 @@ def _leave_unwritten_defaults(data: dict, source_text: str) -> None:
         original = tomllib.loads(source_text)
     except tomllib.TOMLDecodeError:
         return
-    axes = original.get("axis", [])
-    written = {a.get("name"): a for a in axes if isinstance(a, dict)} if isinstance(axes, list) else {}
-    for entry in data.get("axis", []):
-        if entry.get("start") == 0.0 and "start" not in written.get(entry["name"], {}):
+    axes = [a for a in original.get("axis", []) if isinstance(a, dict)] if isinstance(original.get("axis"), list) else []
+    by_name = {a.get("name"): a for a in axes}
+    for i, entry in enumerate(data.get("axis", [])):
+        # the axis as the file wrote it: by name, else in its place (a renamed axis)
+        was = by_name.get(entry["name"], axes[i] if i < len(axes) else {})
+        if entry.get("start") == 0.0 and "start" not in was:
             del entry["start"]
 
 
