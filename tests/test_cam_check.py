@@ -166,7 +166,7 @@ def test_limits_say_where_they_come_from(capsys, tmp_path):
 def test_human_report_in_words(capsys, tmp_path):
     code, out = check_text(capsys, tmp_path, GOOD)
     assert "cam lift-cam" in out and "cam swing-cam" in out and "cam flat-cam" in out
-    assert "pressure angle [deg]" in out and "undercut: pitch radius [mm]" in out  # units shown, not eaten as markup
+    assert "pressure angle [deg]" in out and "pitch radius [mm]" in out and "cusp radius [mm]" in out  # units shown, not eaten as markup
     assert "common practice" in out and "no undercut" in out and "no cusp" in out
     assert "loads on cam lift-cam" in out and "rigid-body estimates" in out and "kept" in out
     assert "max speed without jump [cycles/min]" in out and "camshaft torque, RMS [N·m]" in out

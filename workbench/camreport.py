@@ -227,11 +227,11 @@ def cam_json(study: CamStudy, loads: CamLoads | None) -> dict:
 CHECK_LABELS = {
     "pivot_clearance": "pivot clearance [mm]",
     "pressure_angle": "pressure angle [deg]",
-    "undercut": "undercut: pitch radius [mm]",
+    "undercut": "pitch radius [mm]",
     "curvature_ratio": "curvature ratio",
-    "cusp": "cusp: profile radius [mm]",
+    "cusp": "cusp radius [mm]",  # the profile's, checked for a cusp (≤ 0)
     "face_width": "face width [mm]",
-    "min_radius": "least profile radius [mm]",
+    "min_radius": "profile radius [mm]",
     "corner": "corners",
 }
 FAIL_WORDS = {"pivot_clearance": "IN CAM", "undercut": "UNDERCUT", "cusp": "CUSP", "corner": "CORNER",
