@@ -233,6 +233,7 @@ async def test_no_loads_shows_a_valid_example():
         await settle(pilot)
         shown = str(app.query_one("#loads-empty-text", Static).content)
         assert shown.startswith("No loads to show") and LOADS_EXAMPLE in shown
+        assert "[linkage.loads]" in shown and "presets/slider-crank.toml" in shown  # the linkage way too
         assert app.query_one("#loads-empty").display and not app.query_one("#loads-plots").display
     # the example under the stripper cam (which has no loads) makes a valid project
     text = preset_path("cam-press").read_text() + "\n" + LOADS_EXAMPLE + "\n"

@@ -120,7 +120,11 @@ def nothing_text(project: Project | None) -> Text:
     text.append("A spring-closed cam follower gets its contact force, jump speed, spring preload and "
                 "camshaft torque here when its [[cam]] table has a [cam.loads] table, for example:\n\n")
     text.append(LOADS_EXAMPLE + "\n\n", style="cyan")
-    text.append("then open the file again (ctrl+o). The README's Cams section lists every key.", style="dim")
+    text.append("A linkage's driver gets its drive torque or force, with a servo's limits, and every "
+                "joint's reaction, when its [[linkage]] table has a [linkage.loads] table with the "
+                "bodies' masses (see presets/slider-crank.toml).\n\n")
+    text.append("Then open the file again (ctrl+o). The README's Cams and Linkage loads sections list "
+                "every key.", style="dim")
     return text
 
 
