@@ -235,7 +235,7 @@ class AxesView(CellsInPlace, NumbersAhead, WorkbenchView):
         panel.show(result)
 
     def focus_first(self) -> None:
-        self.query_one(SegmentTable).focus()
+        self.screen.set_focus(self.query_one(SegmentTable))  # now: the next key finds it
 
     # --- edits up -----------------------------------------------------------
 

@@ -10,7 +10,9 @@ A view is a widget that the app keeps in a content switcher.  Contract:
    numbers for `project` (`workbench.tui.compute.AxisResult` by axis name).
 4. Edits go to `app.apply_edit(project, note)` (at once, so the next key acts on them); status
    lines as `Status`.
-5. ``focus_first()`` — put the keyboard focus where the view's work starts.
+5. ``focus_first()`` — put the keyboard focus where the view's work starts, at once
+   (`screen.set_focus`, not `widget.focus()`, which comes a moment later: a key typed
+   right after the one that showed the view must find the focus there).
 
 Keys act in the order they were typed, even when they arrive in a bunch
 (`on_key`).  Textual runs a binding only once its key has travelled up to

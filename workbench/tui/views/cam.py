@@ -293,7 +293,7 @@ class CamView(WorkbenchView):
         bar.update(text, layout=False)
 
     def focus_first(self) -> None:
-        self.query_one(CamDrawing).focus()
+        self.screen.set_focus(self.query_one(CamDrawing))  # now: the next key finds it
 
     # --- keys ---------------------------------------------------------------
 

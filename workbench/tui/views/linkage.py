@@ -200,9 +200,9 @@ class LinkageView(LinkageKeys, LinkageStudies, WorkbenchView):
 
     def focus_first(self) -> None:
         if self.specs:
-            self.query_one(LinkageDrawing).focus()
+            self.screen.set_focus(self.query_one(LinkageDrawing))  # now: the next key finds it
         else:
-            self.query_one("#lk-empty").focus()
+            self.screen.set_focus(self.query_one("#lk-empty"))
 
 
 register_view(LinkageView)

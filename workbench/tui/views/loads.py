@@ -317,7 +317,7 @@ class LoadsView(WorkbenchView):
         bar.update(text, layout=False)
 
     def focus_first(self) -> None:
-        self.query_one("#loads-body").focus()
+        self.screen.set_focus(self.query_one("#loads-body"))  # now: the next key finds it
 
     # --- keys ---------------------------------------------------------------
 

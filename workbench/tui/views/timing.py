@@ -54,7 +54,7 @@ class TimingView(WorkbenchView):
         self.query_one(TimingReadout).show(self.project, self.results, self.angle)
 
     def focus_first(self) -> None:
-        self.query_one(TimingChart).focus()
+        self.screen.set_focus(self.query_one(TimingChart))  # now: the next key finds it
 
     def action_step(self, step: float) -> None:
         self.action_go((self.angle + step) % 360.0)
