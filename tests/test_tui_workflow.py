@@ -941,3 +941,39 @@ async def test_the_footer_and_help_show_a_views_step_keys_as_its_own(preset, key
         active = app.screen.active_bindings
         # ← → step the view (not a scroll around its focused widget), and that is what is shown
         assert all(active[k].node is view and active[k].binding.action.startswith("step") for k in ("left", "right"))
+
+
+async def test_after_opening_a_file_the_view_a_key_shows_takes_the_keys_after_it():
+    app = Workbench(load_project(preset_path("slider-crank")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("3", "ctrl+o")  # from the Linkage view, open another file: nothing has the focus
+        await pilot.pause()
+        app.screen.query_one("#path", Input).value = str(preset_path("cam-press"))
+        await pilot.press("enter")
+        await settle(pilot)
+        await type_in_a_bunch(pilot, "4", "right", "right", "right")  # the Cam view, three steps
+        assert app.query_one("#cam").angle == 15.0
+
+
+@pytest.mark.parametrize("typed, saved_as", [("80", "cycle_time"), ("90", "speed")])
+async def test_the_speed_dialog_says_how_a_cycle_time_file_will_keep_the_speed(typed, saved_as):
+    app = Workbench(load_project(preset_path("carton-indexer")))  # given by cycle_time = 0.8 s
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await type_in_a_bunch(pilot, "m", *typed)
+        feedback = str(app.screen.query_one("#feedback").render())
+        assert f"saved as {saved_as}" in feedback  # 80 → 0.75 s is short; 90 → 0.666… s is not
+
+
+async def test_at_80_columns_the_timing_readout_marks_each_axis_over_the_cycle():
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("2")
+        await settle(pilot)
+        readout = app.query_one("#timing-readout")
+        names = [c.plain if hasattr(c, "plain") else str(c) for c in readout.content.columns[0].cells]
+        # the lid's jerk is over its limit (cycloidal Cj = 4π², see above); the others are within
+        assert names == ["✗ lid-lift", "✓ tray-pusher", "✓ seal-head"]
+        assert len(readout.content.columns) == 5 and "over the cycle" in str(readout.content.caption)

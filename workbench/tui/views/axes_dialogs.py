@@ -207,7 +207,8 @@ def law_dialog(project: Project, axis_name: str, index: int) -> tuple[ModelDialo
 
 def speed_dialog(project: Project) -> tuple[ModelDialog, Note]:
     m = project.machine
-    form = " (the file gives cycle_time; it is kept in that form)" if m.speed is None else ""
+    form = (" (the file gives cycle_time; it stays a cycle time when that is a short decimal)"
+            if m.speed is None else "")
 
     shown = f"{project.speed:g}"
 
@@ -216,7 +217,9 @@ def speed_dialog(project: Project) -> tuple[ModelDialog, Note]:
         return project if speed == project.speed else editing.set_speed(project, speed)
 
     def explain(p: Project) -> str:
-        return (f"{number(p.speed, 'cycles/min')} = {number(60_000.0 / p.speed, 'ms')} per cycle"
+        kept = p.machine.cycle_time is not None
+        saved = "" if m.speed is not None else ("; saved as cycle_time" if kept else "; saved as speed")
+        return (f"{number(p.speed, 'cycles/min')} = {number(60_000.0 / p.speed, 'ms')} per cycle{saved}"
                 + verdict_all(p))
 
     def note(p: Project) -> str:

@@ -146,21 +146,21 @@ class TimingChart(Widget, can_focus=True):
         return text
 
 
-SHORT_NAMES = {"acceleration": "accel."}
+WIDE_READOUT = 100  # columns from which the readout has room for the cycle column
+NARROW_CAPTION = "✓ ✗ the axis within / over its limits over the cycle"
 CYCLE_HEADER = "over the cycle"  # the last column: not at the cursor, the axis's most used limit
 
 
 def cycle_verdict(result: AxisResult) -> Text:
-    """The axis's most used limit over the whole cycle: "✗ accel. 133 %", "✓ jerk 74 %", or
-    "· no limits" (acceleration shortened: the column fits beside the others at 80 columns)."""
+    """The axis's most used limit over the whole cycle: "✗ acceleration 133 %", "✓ jerk 74 %", or
+    "· no limits"."""
     checks = result.report.checks
     if not checks:
         return Text("· no limits", style="dim")
     worst = max(checks, key=lambda c: c.used)
     share = "∞ %" if math.isinf(worst.used) else percent(worst.used)
     ok = result.report.ok
-    name = SHORT_NAMES.get(worst.quantity, worst.quantity)
-    return Text(f"{'✓' if ok else '✗'} {name} {share}", style=OK_STYLE if ok else OVER_STYLE)
+    return Text(f"{'✓' if ok else '✗'} {worst.quantity} {share}", style=OK_STYLE if ok else OVER_STYLE)
 
 
 class TimingReadout(Static):
@@ -170,11 +170,13 @@ class TimingReadout(Static):
     DEFAULT_CSS = "TimingReadout { height: auto; }"
 
     def show(self, project: Project | None, results: dict[str, AxisResult], angle: float) -> None:
+        wide = self.app.size.width >= WIDE_READOUT  # the terminal's columns
         table = Table(box=None, padding=(0, 1), show_edge=False, header_style="bold",
-                      title=Text(f"at master {degrees(angle)}", style="bold"), title_justify="left")
-        for header in ("axis", "segment", "position", "velocity", "acceleration", CYCLE_HEADER):
-            table.add_column(header, justify="left" if header in ("axis", "segment", CYCLE_HEADER) else "right",
-                             no_wrap=True)
+                      title=Text(f"at master {degrees(angle)}", style="bold"), title_justify="left",
+                      caption=None if wide else NARROW_CAPTION, caption_justify="left", caption_style="dim")
+        headers = ("axis", "segment", "position", "velocity", "acceleration") + ((CYCLE_HEADER,) if wide else ())
+        for header in headers:
+            table.add_column(header, justify="left" if header in ("axis", "segment", CYCLE_HEADER) else "right")
         if project is not None:
             for axis in project.axes:
                 result = results.get(axis.name)
@@ -189,5 +191,10 @@ class TimingReadout(Static):
                               unit_of(quantity, axis.unit))
                        for quantity, values in (("position", curves.position), ("velocity", curves.velocity),
                                                 ("acceleration", curves.acceleration))]
-                table.add_row(axis.name, f"{seg + 1} {law}", *row, cycle_verdict(result))
+                verdict = cycle_verdict(result)
+                if wide:
+                    table.add_row(axis.name, f"{seg + 1} {law}", *row, verdict)
+                else:  # the verdict's mark before the name; the whole of it where it fits
+                    name = Text.assemble((verdict.plain[0], verdict.style), " ", axis.name)
+                    table.add_row(name, f"{seg + 1} {law}", *row)
         self.update(table)
