@@ -242,6 +242,26 @@ def test_an_axis_start_of_0_is_saved_as_the_file_had_it():
     assert "start" not in dumps(loads_project(unwritten, "x.toml"))
 
 
+def test_comments_stay_with_their_segment_when_segments_are_added_or_removed(tmp_path):
+    from workbench import editing
+
+    target = tmp_path / "arm.toml"
+    target.write_text(preset_path("label-arm").read_text())  # tamp-pad: dwell, polynomial ×2, cycloidal
+    project = load_project(target)
+    save_project(editing.delete_segment(project, "tamp-pad", 1))  # the first polynomial ("down fast")
+    text = target.read_text()
+    assert "down fast" not in text  # its comment went with it …
+    assert 'law = "polynomial"          # press: the last 3 mm, easing to rest' in text  # … the others stay
+    target.write_text(preset_path("tray-lidder").read_text())  # seal-head: dwell, poly4567, dwell, poly4567
+    project = load_project(target)
+    edited = editing.insert_segment(project, "seal-head", 0, "cycloidal", 20.0, None, 0)
+    save_project(editing.delete_segment(edited, "seal-head", 3))  # the 50° dwell ("sealing")
+    text = target.read_text()
+    assert "# sealing" not in text and "to = -12.0                  # down onto the lid" in text
+    assert load_project(target).axis("seal-head").segments == editing.delete_segment(edited, "seal-head", 3).axis(
+        "seal-head").segments
+
+
 def test_merge_falls_back_to_canonical_layout_when_it_cannot_be_exact(monkeypatch):
     import workbench.projectfile as pf
 

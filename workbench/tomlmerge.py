@@ -12,6 +12,7 @@ numbers.
 
 from __future__ import annotations
 
+import difflib
 import tomllib
 
 import tomlkit
@@ -53,13 +54,7 @@ def _merge(container, new: dict) -> None:
         if isinstance(value, dict) and isinstance(old, (Table, InlineTable, dict)):
             _merge(old, value)
         elif _is_table_array(value) and isinstance(old, AoT):
-            for i, entry in enumerate(value):
-                if i < len(old):
-                    _merge(old[i], entry)
-                else:
-                    old.append(_new_item(None, entry))
-            while len(old) > len(value):
-                del old[len(old) - 1]
+            _merge_tables(old, value)
         elif _plain(old) != value or type(_plain(old)) is bool and type(value) is not bool:
             _replace(container, key, old, value)
 
@@ -76,6 +71,34 @@ def _replace(container, key, old, value) -> None:
     if width is not None and trivia is not None and trivia.comment:
         spare = len(trivia.comment_ws) - (len(new.as_string()) - width)
         trivia.comment_ws = " " * max(1, spare)
+
+
+def _signature(entry) -> tuple:
+    """What makes a table of an array the same one after tables were added or removed before it:
+    its name where it has one (an axis, a cam), else its law and end position (a segment)."""
+    entry = _plain(entry)
+    if "name" in entry:
+        return ("name", entry["name"])
+    return ("law", entry.get("law"), entry.get("to"))
+
+
+def _merge_tables(old: AoT, new: list[dict]) -> None:
+    """An array of tables edited to hold `new`: each new table merged into the old one it matches
+    (so its comments stay with it when a table before it was added or removed), tables that are
+    gone removed, new ones inserted where they stand."""
+    ops = difflib.SequenceMatcher(None, [_signature(t) for t in old], [_signature(t) for t in new],
+                                  autojunk=False).get_opcodes()
+    at = 0  # where in `old`, as it is being edited, the next table goes
+    for tag, i1, i2, j1, j2 in ops:
+        paired = min(i2 - i1, j2 - j1) if tag in ("equal", "replace") else 0
+        for k in range(paired):
+            _merge(old[at + k], new[j1 + k])
+        at += paired
+        for _ in range((i2 - i1) - paired):  # old tables with no counterpart: removed
+            del old[at]
+        for entry in new[j1 + paired:j2]:  # new tables with no counterpart: inserted here
+            old.insert(at, _new_item(None, entry))
+            at += 1
 
 
 def _plain(item):
