@@ -977,3 +977,25 @@ async def test_at_80_columns_the_timing_readout_marks_each_axis_over_the_cycle()
         # the lid's jerk is over its limit (cycloidal Cj = 4π², see above); the others are within
         assert names == ["✗ lid-lift", "✓ tray-pusher", "✓ seal-head"]
         assert len(readout.content.columns) == 5 and "over the cycle" in str(readout.content.caption)
+
+
+def test_a_verdict_with_an_infinite_peak_says_so_in_words():
+    from workbench import editing
+    from workbench.tui.views.axes_dialogs import most_used
+
+    # a harmonic rise after a dwell jumps in acceleration (the harmonic's end acceleration is not
+    # zero, handbook): its jerk is infinite, over any jerk limit
+    project = editing.set_law(load_project(preset_path("tray-lidder")), LID, 0, "harmonic")
+    assert most_used(project, [LID]) == "jerk infinite (the motion jumps), LIMIT EXCEEDED"
+
+
+async def test_the_limits_dialog_shows_large_limits_written_out():
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("L")
+        await pilot.pause()
+        assert app.screen.query_one("#jerk", Input).value == "700,000"  # not 7e+05
+        await pilot.press("enter")  # taken as it stands: nothing changes
+        await settle(pilot)
+        assert app.project.axis(LID).limits.jerk == 700_000.0 and not app.history.can_undo

@@ -69,7 +69,9 @@ def most_used(project: Project, axis_names: list[str]) -> str:
     if worst is None:
         return ""
     name, check = worst
-    share = "∞" if check.used == float("inf") else percent(check.used)
+    if check.used == float("inf"):
+        return f"{who_of(name, axis_names)}{check.quantity} infinite (the motion jumps), LIMIT EXCEEDED"
+    share = percent(check.used)
     if not ok:
         state = "LIMIT EXCEEDED"
     elif len(axis_names) == 1:
@@ -77,8 +79,12 @@ def most_used(project: Project, axis_names: list[str]) -> str:
     else:
         state = "all axes within limits" if not unlimited else \
             f"all limits met; {', '.join(unlimited)}: no limits"
-    who = f"{name} " if len(axis_names) > 1 else ""
-    return f"{who}{check.quantity} at {share} of its limit, {state}"
+    return f"{who_of(name, axis_names)}{check.quantity} at {share} of its limit, {state}"
+
+
+def who_of(name: str, axis_names: list[str]) -> str:
+    """"lid-lift " when a verdict is over several axes, else nothing."""
+    return f"{name} " if len(axis_names) > 1 else ""
 
 
 def verdict_after(project: Project, axis_name: str) -> str:
@@ -231,7 +237,7 @@ def speed_dialog(project: Project) -> tuple[ModelDialog, Note]:
 
 def limits_dialog(project: Project, axis_name: str) -> tuple[ModelDialog, Note]:
     axis = project.axis(axis_name)
-    fields = [Field(q, f"{q} [{unit_of(q, axis.unit)}]", "" if value is None else f"{value:g}", "blank: no limit")
+    fields = [Field(q, f"{q} [{unit_of(q, axis.unit)}]", "" if value is None else f"{value:,.12g}", "blank: no limit")
               for q, value in axis.limits.items()]
 
     def attempt(texts: tuple[str, ...]) -> Project:
