@@ -318,7 +318,7 @@ class Workbench(TypedAhead, App, inherit_bindings=False):
             self.push_screen(PathDialog("Open a project file", current, attempt,
                                         "enter: open (the current file: reload it)   esc: cancel"), opened)
 
-        self._guard_unsaved("open another file", ask)
+        self._guard_unsaved("open a file (or reload this one)", ask)
 
     def _guard_unsaved(self, doing: str, then) -> None:
         """Run `then` now, or after asking what to do with unsaved changes."""
