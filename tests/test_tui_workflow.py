@@ -999,3 +999,17 @@ async def test_the_limits_dialog_shows_large_limits_written_out():
         await pilot.press("enter")  # taken as it stands: nothing changes
         await settle(pilot)
         assert app.project.axis(LID).limits.jerk == 700_000.0 and not app.history.can_undo
+
+
+async def test_keys_after_an_action_that_waits_for_the_cams_wait_with_it():
+    app = Workbench(load_project(preset_path("tray-lidder")))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("ctrl+o")
+        await pilot.pause()
+        app.screen.query_one("#path", Input).value = str(preset_path("cam-press"))
+        await pilot.press("enter")
+        await settle(pilot)
+        # the Cam view, export, CSV: `e` waits for the cams to be studied, and the `c` with it
+        await type_in_a_bunch(pilot, "4", "e", "c")
+        assert getattr(app.screen, "title_text", "") == "Export cam stamp-cam as CSV"

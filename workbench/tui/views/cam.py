@@ -14,7 +14,7 @@ from __future__ import annotations
 import math
 
 from rich.text import Text
-from textual import on, work
+from textual import events, on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal
@@ -127,6 +127,8 @@ class CamView(WorkbenchView):
         self._spot = 0
         self._waiting: list = []
         """Actions asked for while the worker studies the cams; they run when it is done."""
+        self._held: list[events.Key] = []
+        """Keys typed after an action that waits for the study: they wait too, in order."""
 
     def compose(self) -> ComposeResult:
         yield CamBar(id="cam-bar")
@@ -173,6 +175,17 @@ class CamView(WorkbenchView):
         waiting, self._waiting = self._waiting, []
         for action in waiting:
             action()
+        held, self._held = self._held, []
+        for key in held:  # after what the waiting action opened (a dialog takes them)
+            self.app.post_message(events.Key(key.key, key.character))
+
+    async def key_in_turn(self, event: events.Key) -> None:
+        """A key typed after an action that waits for the cams' study waits with it (`e c`: the
+        format chooser the `e` opens once the cams are studied takes the `c`)."""
+        if self._waiting:
+            self._held.append(event)
+            return
+        await super().key_in_turn(event)
 
     def _when_studied(self, action) -> bool:
         """True to go on now; False when the cams are still being studied (`action` runs then)."""
