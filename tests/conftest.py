@@ -28,3 +28,16 @@ def press_file(tmp_path) -> Path:
     path = tmp_path / "press.toml"
     shutil.copy(preset_path("cam-press"), path)
     return path
+
+
+@pytest.fixture
+def unlaid_press(press_file):
+    """The cam-press project with its stamp cam following an axis that is not there: a cam that
+    cannot be laid out."""
+    from dataclasses import replace
+
+    from workbench.projectfile import load_project
+
+    project = load_project(press_file)
+    cams = project.parts["cam"]
+    return replace(project, parts={**project.parts, "cam": [replace(cams[0], axis="gone")] + cams[1:]})

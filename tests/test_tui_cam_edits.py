@@ -12,7 +12,6 @@ on a 0.01° grid.
 from __future__ import annotations
 
 import difflib
-from dataclasses import replace
 
 import numpy as np
 from textual.widgets import Input, Static
@@ -274,10 +273,8 @@ async def test_keys_typed_right_after_L_reach_the_dialog(press_file):
         assert isinstance(app.current_view, CamView)  # "2" did not switch to the Timing view
 
 
-async def test_a_cam_that_cannot_be_laid_out_refuses_its_edits_with_the_reason(press_file):
-    project = load_project(press_file)
-    cams = project.parts["cam"]
-    broken = replace(project, parts={**project.parts, "cam": [replace(cams[0], axis="gone")] + cams[1:]})
+async def test_a_cam_that_cannot_be_laid_out_refuses_its_edits_with_the_reason(unlaid_press):
+    broken = unlaid_press
     app = Workbench(broken)
     async with app.run_test(size=SIZE) as pilot:
         await cam_view(pilot)

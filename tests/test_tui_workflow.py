@@ -434,6 +434,15 @@ async def test_reorder_add_speed_and_limits(project_file):
         assert peaks(app)["jerk"]["verdict"] == "· no limit"
 
 
+async def open_file(pilot, path) -> None:
+    """Open `path` as a user does: ctrl+o, the path, Enter; then let its numbers come."""
+    await pilot.press("ctrl+o")
+    await pilot.pause()
+    pilot.app.screen.query_one("#path", Input).value = str(path)
+    await pilot.press("enter")
+    await settle(pilot)
+
+
 async def test_save_reopen_and_compare_file(project_file, tmp_path):
     app = Workbench(load_project(project_file))
     async with app.run_test(size=SIZE) as pilot:
@@ -466,11 +475,7 @@ async def test_save_reopen_and_compare_file(project_file, tmp_path):
         await pilot.press("escape")
         await pilot.pause()
         assert app.project.path == other and app.status_text == f"not saved: {project_file} is left as it was"
-        await pilot.press("ctrl+o")
-        await pilot.pause()
-        app.screen.query_one("#path", Input).value = str(project_file)
-        await pilot.press("enter")
-        await settle(pilot)
+        await open_file(pilot, project_file)
         assert app.project.path == project_file
         assert dumps(app.project) == saved
         assert not app.history.can_undo
@@ -947,11 +952,8 @@ async def test_after_opening_a_file_the_view_a_key_shows_takes_the_keys_after_it
     app = Workbench(load_project(preset_path("slider-crank")))
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        await pilot.press("3", "ctrl+o")  # from the Linkage view, open another file: nothing has the focus
-        await pilot.pause()
-        app.screen.query_one("#path", Input).value = str(preset_path("cam-press"))
-        await pilot.press("enter")
-        await settle(pilot)
+        await pilot.press("3")
+        await open_file(pilot, preset_path("cam-press"))  # from the Linkage view: nothing has the focus now
         await type_in_a_bunch(pilot, "4", "right", "right", "right")  # the Cam view, three steps
         assert app.query_one("#cam").angle == 15.0
 
@@ -1005,11 +1007,7 @@ async def test_keys_after_an_action_that_waits_for_the_cams_wait_with_it():
     app = Workbench(load_project(preset_path("tray-lidder")))
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
-        await pilot.press("ctrl+o")
-        await pilot.pause()
-        app.screen.query_one("#path", Input).value = str(preset_path("cam-press"))
-        await pilot.press("enter")
-        await settle(pilot)
+        await open_file(pilot, preset_path("cam-press"))
         # the Cam view, export, CSV: `e` waits for the cams to be studied, and the `c` with it
         await type_in_a_bunch(pilot, "4", "e", "c")
         assert getattr(app.screen, "title_text", "") == "Export cam stamp-cam as CSV"
